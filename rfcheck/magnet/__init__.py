@@ -1,0 +1,1 @@
+"""Magnet field sources and resonance geometry."""

@@ -1,0 +1,325 @@
+"""The frozen source model, in SI.
+
+`rfcheck.spec` turns a TOML specification into these objects; nothing after it sees a
+unit string. Lengths in m, fields in T, densities in m^-3, frequencies in Hz (never rad/s),
+powers in W, temperatures of electrons in eV, gas temperatures in K, pressures in Pa,
+angles in rad, fractions and tolerances as plain ratios (0.02 for 2 %).
+
+Axis convention: the chamber is axisymmetric about z; r is the distance from the axis.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Literal
+
+import numpy as np
+
+# --------------------------------------------------------------------------- plasma
+
+
+@dataclass(frozen=True)
+class Span:
+    """A closed interval [min, max] of an envelope quantity."""
+
+    min: float
+    max: float
+
+    @property
+    def nominal(self) -> float:
+        """Geometric mean for positive spans (densities span decades), else the midpoint."""
+        if self.min > 0 and self.max > 0:
+            return float(np.sqrt(self.min * self.max))
+        return 0.5 * (self.min + self.max)
+
+
+@dataclass(frozen=True)
+class IonShare:
+    """One ion species and its share of the positive charge density (fractions sum to 1)."""
+
+    species: str  # e.g. "Ar+", "H+", "O3+"
+    fraction: float
+
+
+@dataclass(frozen=True)
+class NeutralGas:
+    species: str  # e.g. "Ar"
+    pressure: float  # Pa
+    temperature: float  # K
+
+
+@dataclass(frozen=True)
+class DensityProfile:
+    """Shape of n_e along the launch path, scaled so that its peak equals the envelope density.
+
+    kind:
+      "flat"      n = n_peak everywhere inside the chamber
+      "parabolic" n = n_peak (1 - (2 s / L - 1)^2)^exponent over the chamber length (peak mid-way)
+      "ramp"      n rises linearly from 0 at each end wall to n_peak over `edge_length`
+      "table"     n = n_peak * shape(z), shape from the table (z in m, shape normalised to max 1)
+    """
+
+    kind: Literal["flat", "parabolic", "ramp", "table"] = "flat"
+    exponent: float = 1.0
+    edge_length: float = 0.0
+    z: tuple[float, ...] = ()
+    shape: tuple[float, ...] = ()
+
+
+@dataclass(frozen=True)
+class Plasma:
+    density: Span  # m^-3, peak electron density over the operating envelope
+    electron_temperature: Span  # eV
+    ions: tuple[IonShare, ...]
+    neutral: NeutralGas | None = None
+    profile: DensityProfile = field(default_factory=DensityProfile)
+
+
+# --------------------------------------------------------------------------- chamber
+
+
+@dataclass(frozen=True)
+class Landmark:
+    """A named axial position that a resonance must keep clear of (extraction, bias disc...)."""
+
+    id: str
+    z: float
+
+
+@dataclass(frozen=True)
+class Chamber:
+    radius: float  # m, plasma-chamber inner radius
+    z_start: float  # m
+    z_end: float  # m
+    landmarks: tuple[Landmark, ...] = ()
+
+    @property
+    def length(self) -> float:
+        return self.z_end - self.z_start
+
+
+# --------------------------------------------------------------------------- magnet
+
+
+@dataclass(frozen=True)
+class Coil:
+    """A thick solenoid of rectangular winding cross-section, coaxial with z.
+
+    `z` is the axial centre of the winding, `length` its axial extent. Current in A per turn;
+    positive current gives +z field on axis (right-hand rule about +z).
+    """
+
+    id: str
+    inner_radius: float
+    outer_radius: float
+    z: float
+    length: float
+    turns: int
+    current: float
+
+
+@dataclass(frozen=True)
+class RingMagnet:
+    """An axially magnetised permanent-magnet ring, coaxial with z.
+
+    `remanence` in T, signed: positive means magnetised towards +z. `inner_radius` may be 0
+    for a solid cylinder.
+    """
+
+    id: str
+    inner_radius: float
+    outer_radius: float
+    z: float
+    length: float
+    remanence: float
+
+
+@dataclass(frozen=True)
+class Multipole:
+    """A radial multipole (hexapole for poles=6) of permanent-magnet segments around the chamber.
+
+    The array is a ring of `segments` equal angular sectors between `inner_radius` and
+    `outer_radius`, centred at axial position `z` with axial `length`. The magnetisation
+    direction rotates so that the array forms a `poles`-pole field (a Halbach-type arrangement
+    for segments > poles). `orientation` (rad) rotates the whole pattern about z.
+    """
+
+    id: str
+    inner_radius: float
+    outer_radius: float
+    z: float
+    length: float
+    remanence: float
+    poles: int = 6
+    segments: int = 24
+    orientation: float = 0.0
+
+
+@dataclass(frozen=True)
+class UniformField:
+    """A uniform axial field (T); models a large solenoid or a bench test."""
+
+    id: str
+    b: float
+
+
+@dataclass(frozen=True)
+class AxisTable:
+    """A measured on-axis field table: B_z(z) at r = 0, z ascending (m, T)."""
+
+    id: str
+    path: str
+    z: tuple[float, ...]
+    b: tuple[float, ...]
+    scales_with_current: bool = True
+
+
+@dataclass(frozen=True)
+class FieldMap:
+    """A measured 2-D axisymmetric map on a regular (r, z) grid, r and z ascending (m, T).
+
+    Arrays are shaped (len(r), len(z)).
+    """
+
+    id: str
+    path: str
+    r: tuple[float, ...]
+    z: tuple[float, ...]
+    br: tuple[tuple[float, ...], ...]
+    bz: tuple[tuple[float, ...], ...]
+    scales_with_current: bool = True
+
+
+MagnetSource = Coil | RingMagnet | Multipole | UniformField | AxisTable | FieldMap
+
+
+@dataclass(frozen=True)
+class Magnet:
+    """All field sources; their fields add.
+
+    `current_tolerance` is the relative tolerance of every coil current (and of measured
+    tables/maps flagged `scales_with_current`): the envelope spans scale 1 ± tolerance.
+    `trap` declares the confinement type; "minimum-b" switches on the min-B ion-source rules.
+    """
+
+    sources: tuple[MagnetSource, ...]
+    current_tolerance: float = 0.0
+    trap: Literal["none", "mirror", "minimum-b"] = "none"
+
+
+# --------------------------------------------------------------------------- RF feeds
+
+
+@dataclass(frozen=True)
+class Launch:
+    z: float  # m, launcher position on the axis
+    direction: int  # +1 launches towards +z, -1 towards -z
+    mode: Literal["R", "L", "O", "X"]
+    angle_to_field: float  # rad, angle between k and B at the launcher
+
+
+Absorption = Literal["ecr", "ecr-harmonic-2", "uhr", "icr", "lh", "helicon", "inductive"]
+
+
+@dataclass(frozen=True)
+class Feed:
+    id: str
+    frequency: float  # Hz
+    frequency_tolerance: float  # Hz, half-width
+    power: float  # W, peak forward power
+    duty_cycle: float  # 0..1
+    max_reflected_power: float | None  # W, what the generator/circulator tolerates
+    line: str  # "WR-340", "circular:50 mm", "coax:...", "free-space"
+    launch: Launch
+    absorption: Absorption
+
+    @property
+    def average_power(self) -> float:
+        return self.power * self.duty_cycle
+
+
+# --------------------------------------------------------------------------- windows
+
+
+@dataclass(frozen=True)
+class Material:
+    """A dielectric: relative permittivity and loss tangent at `frequency` (Hz)."""
+
+    id: str
+    permittivity: float
+    loss_tangent: float
+    frequency: float | None = None
+    source: str = ""
+    confidence: str = ""
+    cautions: tuple[str, ...] = ()
+    thermal_conductivity: float | None = None  # W/(m K)
+
+
+@dataclass(frozen=True)
+class WindowLayer:
+    material: str  # material id (library or spec-defined)
+    thickness: float  # m
+    thickness_tolerance: float = 0.0  # m, half-width
+
+
+@dataclass(frozen=True)
+class Window:
+    id: str
+    feed: str
+    z: float
+    layers: tuple[WindowLayer, ...]
+    max_absorbed_power: float | None = None  # W (average power)
+    diameter: float | None = None  # m, clear aperture of a disc window (for thermal estimate)
+
+
+# --------------------------------------------------------------------------- exposure, review
+
+
+@dataclass(frozen=True)
+class Leak:
+    power_density: float  # W/m^2 measured or assumed at `distance`
+    distance: float  # m
+
+
+@dataclass(frozen=True)
+class Exposure:
+    table: str  # reference-level table id
+    leak: Leak | None
+    occupied_distance: float  # m
+
+
+@dataclass(frozen=True)
+class Review:
+    prepared_by: str = ""
+    checked_by: str = ""
+    approved_by: str = ""
+    notes: str = ""
+
+
+@dataclass(frozen=True)
+class SourceInfo:
+    name: str
+    revision: str = ""
+    description: str = ""
+    lab: str = ""
+
+
+@dataclass(frozen=True)
+class SourceModel:
+    """Everything a rule may look at, in SI."""
+
+    source: SourceInfo
+    plasma: Plasma
+    chamber: Chamber
+    magnet: Magnet
+    feeds: tuple[Feed, ...]
+    windows: tuple[Window, ...] = ()
+    materials: tuple[Material, ...] = ()
+    exposure: Exposure | None = None
+    review: Review = field(default_factory=Review)
+
+    def feed(self, feed_id: str) -> Feed:
+        for f in self.feeds:
+            if f.id == feed_id:
+                return f
+        raise KeyError(feed_id)

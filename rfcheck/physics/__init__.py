@@ -1,0 +1,1 @@
+"""Pure-numpy SI physics: no specs, no rules, no units library."""
