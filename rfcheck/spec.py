@@ -1,0 +1,633 @@
+"""Source specification (TOML) → validated, frozen SI model.
+
+Every dimensional value is a string with a unit, read by :mod:`rfcheck.units`. Unknown keys
+are errors. All problems are collected and reported at once, each with its entity path
+(``feed[main].frequency``), its file line, what was found and what was expected.
+The validation models here are also the source of ``rfcheck schema``.
+"""
+
+from __future__ import annotations
+
+import math
+import tomllib
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Annotated, Any, Literal
+
+from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, ValidationError, WithJsonSchema
+
+from rfcheck import model as m
+from rfcheck.tomlines import LineIndex
+from rfcheck.units import DIMENSIONS, UnitError, parse_quantity
+
+SCHEMA_VERSION = 1
+
+
+# --------------------------------------------------------------------------- errors
+
+
+@dataclass(frozen=True)
+class Problem:
+    """One thing wrong with an input file."""
+
+    file: str
+    path: str
+    line: int | None
+    message: str
+
+    def __str__(self) -> str:
+        where = f"{self.file}:{self.line}" if self.line else self.file
+        return f"{where}: {self.path}: {self.message}" if self.path else f"{where}: {self.message}"
+
+
+class InputError(Exception):
+    """Bad input: one or more problems, all reported together (exit code 2)."""
+
+    def __init__(self, problems: list[Problem]):
+        self.problems = problems
+        super().__init__("\n".join(str(p) for p in problems))
+
+
+# --------------------------------------------------------------------------- quantity fields
+
+
+def _quantity(dimension: str, *, positive: bool = False, non_negative: bool = False):
+    dim = DIMENSIONS[dimension]
+
+    def check(value: Any) -> float:
+        if isinstance(value, bool) or not isinstance(value, str):
+            raise ValueError(
+                f"expected a {dim.name} as a string with a unit, e.g. \"{_EXAMPLES[dimension]}\", "
+                f"found {value!r}"
+            )
+        try:
+            x = parse_quantity(value, dimension)
+        except UnitError as exc:
+            raise ValueError(str(exc)) from None
+        if positive and not x > 0:
+            raise ValueError(f"expected a positive {dim.name}, found '{value}'")
+        if non_negative and x < 0:
+            raise ValueError(f"expected a {dim.name} ≥ 0, found '{value}'")
+        return x
+
+    schema = {
+        "type": "string",
+        "description": f"{dim.name} with a unit, e.g. \"{_EXAMPLES[dimension]}\" "
+        f"(accepted units include {', '.join(dim.examples)})",
+        "pattern": r"^\s*[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?\s*\S*.*$",
+    }
+    return Annotated[float, BeforeValidator(check), WithJsonSchema(schema)]
+
+
+_EXAMPLES = {
+    "length": "20 mm", "frequency": "2.45 GHz", "magnetic_field": "875 G",
+    "density": "1e11 cm^-3", "energy": "5 eV", "temperature": "300 K", "pressure": "0.2 Pa",
+    "power": "1.5 kW", "power_density": "1 mW/cm^2", "current": "120 A", "angle": "10 deg",
+    "ratio": "2 %", "electric_field": "3 MV/m", "thermal_conductivity": "30 W/(m*K)",
+}
+
+Length = _quantity("length")
+PosLength = _quantity("length", positive=True)
+NonNegLength = _quantity("length", non_negative=True)
+Frequency = _quantity("frequency", positive=True)
+FrequencyTol = _quantity("frequency", non_negative=True)
+Field_ = _quantity("magnetic_field")
+Density = _quantity("density", positive=True)
+Energy = _quantity("energy", positive=True)
+Temperature = _quantity("temperature", positive=True)
+Pressure = _quantity("pressure", positive=True)
+Power = _quantity("power", non_negative=True)
+PowerDensity = _quantity("power_density", non_negative=True)
+Current = _quantity("current")
+Angle = _quantity("angle")
+Ratio = _quantity("ratio", non_negative=True)
+Conductivity = _quantity("thermal_conductivity", positive=True)
+
+
+class _Strict(BaseModel):
+    model_config = ConfigDict(extra="forbid", frozen=True)
+
+
+Id = Annotated[str, Field(min_length=1, pattern=r"^[A-Za-z0-9][A-Za-z0-9_.\-]*$",
+                          description="identifier: letters, digits, '-', '_', '.'")]
+
+
+# --------------------------------------------------------------------------- sections
+
+
+class SourceSpec(_Strict):
+    name: str = Field(min_length=1, description="name shown on the report cover")
+    revision: str = ""
+    description: str = ""
+    lab: str = ""
+
+
+class DensitySpan(_Strict):
+    min: Density
+    max: Density
+
+
+class EnergySpan(_Strict):
+    min: Energy
+    max: Energy
+
+
+class IonSpec(_Strict):
+    species: str = Field(min_length=1, description='ion species, e.g. "Ar+", "H+", "O3+"')
+    fraction: float = Field(gt=0, le=1, description="share of the positive charge (sum to 1)")
+
+
+class NeutralSpec(_Strict):
+    species: str = Field(min_length=1)
+    pressure: Pressure
+    temperature: Temperature = 300.0
+
+
+class ProfileSpec(_Strict):
+    kind: Literal["flat", "parabolic", "ramp", "table"]
+    exponent: float = Field(1.0, gt=0)
+    edge_length: NonNegLength = 0.0
+    points: list[tuple[Length, float]] = Field(
+        default_factory=list, description='for kind="table": [["0 mm", 0.1], ["50 mm", 1.0], ...]')
+
+
+class PlasmaSpec(_Strict):
+    density: DensitySpan
+    electron_temperature: EnergySpan
+    ions: list[IonSpec] = Field(min_length=1)
+    neutral: NeutralSpec | None = None
+    profile: Literal["flat", "parabolic", "ramp"] | ProfileSpec = "flat"
+
+
+class ZSpan(_Strict):
+    start: Length
+    end: Length
+
+
+class LandmarkSpec(_Strict):
+    id: Id
+    z: Length
+
+
+class ChamberSpec(_Strict):
+    radius: PosLength
+    z: ZSpan
+    landmarks: list[LandmarkSpec] = Field(default_factory=list)
+
+
+class CoilSpec(_Strict):
+    id: Id
+    inner_radius: PosLength
+    outer_radius: PosLength
+    z: Length
+    length: PosLength
+    turns: int = Field(gt=0)
+    current: Current
+
+
+class RingSpec(_Strict):
+    id: Id
+    inner_radius: NonNegLength
+    outer_radius: PosLength
+    z: Length
+    length: PosLength
+    remanence: Field_
+
+
+class MultipoleSpec(_Strict):
+    id: Id
+    inner_radius: PosLength
+    outer_radius: PosLength
+    z: Length
+    length: PosLength
+    remanence: Field_
+    poles: int = Field(6, ge=2, multiple_of=2)
+    segments: int = Field(24, ge=2)
+    orientation: Angle = 0.0
+
+
+class UniformSpec(_Strict):
+    id: Id = "uniform"
+    b: Field_
+
+
+class MeasuredSpec(_Strict):
+    id: Id = "measured"
+    file: str = Field(min_length=1, description="CSV file, relative to the spec file")
+    scales_with_current: bool = True
+
+
+class MagnetSpec(_Strict):
+    current_tolerance: Ratio = 0.0
+    trap: Literal["none", "mirror", "minimum-b"] = "none"
+    coils: list[CoilSpec] = Field(default_factory=list)
+    rings: list[RingSpec] = Field(default_factory=list)
+    multipoles: list[MultipoleSpec] = Field(default_factory=list)
+    uniform: UniformSpec | None = None
+    axis_table: MeasuredSpec | None = None
+    field_map: MeasuredSpec | None = None
+
+
+class LaunchSpec(_Strict):
+    z: Length
+    direction: Literal["+z", "-z"] = "+z"
+    mode: Literal["R", "L", "O", "X"]
+    angle_to_field: Angle = 0.0
+
+
+class FeedSpec(_Strict):
+    id: Id
+    frequency: Frequency
+    frequency_tolerance: FrequencyTol = 0.0
+    power: Power
+    duty_cycle: Ratio = 1.0
+    max_reflected_power: Power | None = None
+    line: str = Field(min_length=1, description='"WR-340", another EIA size, or "free-space"')
+    launch: LaunchSpec
+    absorption: Literal["ecr", "ecr-harmonic-2", "uhr", "icr", "lh", "helicon", "inductive"]
+
+
+class MaterialSpec(_Strict):
+    id: Id
+    permittivity: float = Field(ge=1)
+    loss_tangent: float = Field(ge=0)
+    frequency: Frequency | None = None
+    source: str = Field(min_length=1, description="where the values come from")
+    thermal_conductivity: Conductivity | None = None
+
+
+class LayerSpec(_Strict):
+    material: str = Field(min_length=1)
+    thickness: PosLength
+    thickness_tolerance: NonNegLength = 0.0
+
+
+class WindowSpec(_Strict):
+    id: Id
+    feed: str
+    z: Length
+    layers: list[LayerSpec] = Field(min_length=1)
+    max_absorbed_power: Power | None = None
+    diameter: PosLength | None = None
+
+
+class LeakSpec(_Strict):
+    power_density: PowerDensity
+    at: PosLength
+
+
+class ExposureSpec(_Strict):
+    table: str = Field(min_length=1)
+    leak: LeakSpec | None = None
+    occupied_distance: PosLength
+
+
+class ReviewSpec(_Strict):
+    prepared_by: str = ""
+    checked_by: str = ""
+    approved_by: str = ""
+    notes: str = ""
+
+
+class SpecFile(_Strict):
+    """An rfcheck source specification."""
+
+    schema_: Literal[1] = Field(alias="schema", description="specification format version")
+    source: SourceSpec
+    plasma: PlasmaSpec
+    chamber: ChamberSpec
+    magnet: MagnetSpec
+    feed: list[FeedSpec] = Field(min_length=1)
+    window: list[WindowSpec] = Field(default_factory=list)
+    material: list[MaterialSpec] = Field(default_factory=list)
+    exposure: ExposureSpec | None = None
+    review: ReviewSpec = Field(default_factory=ReviewSpec)
+
+
+def json_schema() -> dict:
+    """The JSON Schema of a spec file (for editors), generated from the validation models."""
+    schema = SpecFile.model_json_schema(by_alias=True)
+    schema["$schema"] = "https://json-schema.org/draft/2020-12/schema"
+    schema["title"] = "rfcheck source specification"
+    return schema
+
+
+# --------------------------------------------------------------------------- loading
+
+
+def _entity_path(loc: tuple, raw: dict) -> str:
+    """('feed', 0, 'frequency') → 'feed[main].frequency' using ids where the element has one."""
+    out = ""
+    node: Any = raw
+    for part in loc:
+        if isinstance(part, int):
+            ident = None
+            if isinstance(node, list) and 0 <= part < len(node) and isinstance(node[part], dict):
+                ident = node[part].get("id")
+            out += f"[{ident}]" if isinstance(ident, str) and ident else f"[{part}]"
+            node = node[part] if isinstance(node, list) and 0 <= part < len(node) else None
+        else:
+            out += ("." if out else "") + str(part)
+            node = node.get(part) if isinstance(node, dict) else None
+    return out
+
+
+def _message(err: dict) -> str:
+    kind = err.get("type", "")
+    found = err.get("input")
+    if kind == "extra_forbidden":
+        return "unknown key (not part of the specification format; check the spelling)"
+    if kind == "missing":
+        return "required key is missing"
+    msg = err.get("msg", "invalid value")
+    if msg.startswith("Value error, "):
+        return msg[len("Value error, "):]
+    if kind in ("literal_error", "enum"):
+        return f"found {found!r}; {msg[0].lower() + msg[1:]}"
+    return f"found {found!r}: {msg[0].lower() + msg[1:]}" if found is not None else msg
+
+
+def _read_toml(path: Path, what: str) -> tuple[dict, str]:
+    if not path.exists():
+        raise InputError([Problem(str(path), "", None, f"{what} file not found")])
+    if not path.is_file():
+        raise InputError([Problem(str(path), "", None, f"{what} path is not a file")])
+    try:
+        text = path.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise InputError([Problem(str(path), "", None, f"cannot read {what}: {exc}")]) from None
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        line = getattr(exc, "lineno", None)
+        msg = str(exc)
+        if line is None:
+            import re
+
+            found = re.search(r"line (\d+)", msg)
+            line = int(found.group(1)) if found else None
+        raise InputError([Problem(str(path), "", line, f"not valid TOML: {msg}")]) from None
+    return data, text
+
+
+@dataclass(frozen=True)
+class LoadedSpec:
+    """The model plus what provenance needs: the file's bytes and its normalised form."""
+
+    model: m.SourceModel
+    path: Path
+    text: str
+    normalised: dict
+
+
+def load_spec(path: str | Path) -> LoadedSpec:
+    """Read, validate and convert a spec file. Raises :class:`InputError` listing every problem."""
+    path = Path(path)
+    raw, text = _read_toml(path, "specification")
+    lines = LineIndex(text)
+    problems: list[Problem] = []
+    try:
+        spec = SpecFile.model_validate(raw)
+    except ValidationError as exc:
+        for err in exc.errors():
+            loc = tuple(err["loc"])
+            # drop pydantic's union-branch tags from the path (e.g. 'ProfileSpec', 'literal[...]')
+            loc = tuple(p for p in loc if not (isinstance(p, str) and (p[:1].isupper() or "[" in p)))
+            problems.append(Problem(str(path), _entity_path(loc, raw), lines.line_of(loc),
+                                    _message(err)))
+        raise InputError(_dedupe(problems)) from None
+    checker = _CrossCheck(spec, raw, lines, path)
+    model = checker.build()
+    if checker.problems:
+        raise InputError(checker.problems)
+    return LoadedSpec(model=model, path=path, text=text,
+                      normalised=spec.model_dump(mode="json", by_alias=True))
+
+
+def _dedupe(problems: list[Problem]) -> list[Problem]:
+    seen, out = set(), []
+    for p in problems:
+        key = (p.path, p.message)
+        if key not in seen:
+            seen.add(key)
+            out.append(p)
+    return out
+
+
+class _CrossCheck:
+    """Checks that span several keys, then the conversion to the frozen model."""
+
+    def __init__(self, spec: SpecFile, raw: dict, lines: LineIndex, path: Path):
+        self.spec, self.raw, self.lines, self.path = spec, raw, lines, path
+        self.problems: list[Problem] = []
+
+    def fail(self, loc: tuple, message: str) -> None:
+        self.problems.append(Problem(str(self.path), _entity_path(loc, self.raw),
+                                     self.lines.line_of(loc), message))
+
+    def unique(self, items, loc: tuple, what: str) -> None:
+        seen: set[str] = set()
+        for i, item in enumerate(items):
+            if item.id in seen:
+                self.fail(loc + (i, "id"), f"duplicate {what} id '{item.id}'")
+            seen.add(item.id)
+
+    def build(self) -> m.SourceModel:
+        s = self.spec
+        p = s.plasma
+        if p.density.min > p.density.max:
+            self.fail(("plasma", "density"), "min is greater than max")
+        if p.electron_temperature.min > p.electron_temperature.max:
+            self.fail(("plasma", "electron_temperature"), "min is greater than max")
+        total = sum(ion.fraction for ion in p.ions)
+        if not math.isclose(total, 1.0, abs_tol=1e-6):
+            self.fail(("plasma", "ions"), f"ion fractions sum to {total:g}; expected 1")
+        for i, ion in enumerate(p.ions):
+            self._species(ion.species, ("plasma", "ions", i, "species"))
+        c = s.chamber
+        if c.z.start >= c.z.end:
+            self.fail(("chamber", "z"), "start must be below end")
+        for i, lm in enumerate(c.landmarks):
+            if not c.z.start <= lm.z <= c.z.end:
+                self.fail(("chamber", "landmarks", i, "z"),
+                          f"landmark at {lm.z * 1e3:g} mm lies outside the chamber "
+                          f"({c.z.start * 1e3:g}..{c.z.end * 1e3:g} mm)")
+        self.unique(c.landmarks, ("chamber", "landmarks"), "landmark")
+        mg = s.magnet
+        for kind in ("coils", "rings", "multipoles"):
+            items = getattr(mg, kind)
+            self.unique(items, ("magnet", kind), kind[:-1])
+            for i, item in enumerate(items):
+                if item.outer_radius <= item.inner_radius:
+                    self.fail(("magnet", kind, i, "outer_radius"),
+                              "outer_radius must exceed inner_radius")
+        if mg.multipoles:
+            for i, mp in enumerate(mg.multipoles):
+                if mp.segments % mp.poles:
+                    self.fail(("magnet", "multipoles", i, "segments"),
+                              f"segments ({mp.segments}) must be a multiple of poles ({mp.poles})")
+        sources = self._magnet_sources()
+        if not sources and not self.problems:
+            self.fail(("magnet",), "no field source: give coils, rings, multipoles, uniform, "
+                                   "axis_table or field_map")
+        self.unique(s.feed, ("feed",), "feed")
+        feed_ids = {f.id for f in s.feed}
+        for i, f in enumerate(s.feed):
+            if f.frequency_tolerance >= f.frequency:
+                self.fail(("feed", i, "frequency_tolerance"), "tolerance must be below the frequency")
+            if f.duty_cycle > 1:
+                self.fail(("feed", i, "duty_cycle"), "duty cycle above 100 %")
+            self._line(f.line, ("feed", i, "line"))
+        self.unique(s.material, ("material",), "material")
+        known = self._material_ids() | {mt.id for mt in s.material}
+        self.unique(s.window, ("window",), "window")
+        for i, w in enumerate(s.window):
+            if w.feed not in feed_ids:
+                self.fail(("window", i, "feed"),
+                          f"no feed '{w.feed}'; feeds are: {', '.join(sorted(feed_ids))}")
+            for j, layer in enumerate(w.layers):
+                if layer.material not in known:
+                    self.fail(("window", i, "layers", j, "material"),
+                              f"unknown material '{layer.material}'; define it in a [[material]] "
+                              f"table or use one of: {', '.join(sorted(self._material_ids()))}")
+                if layer.thickness_tolerance >= layer.thickness:
+                    self.fail(("window", i, "layers", j, "thickness_tolerance"),
+                              "tolerance must be below the thickness")
+        if s.exposure is not None:
+            self._exposure_table(s.exposure.table, ("exposure", "table"))
+        if self.problems:
+            return None  # type: ignore[return-value]
+        return self._model(sources)
+
+    # ---- catalogue look-ups (lazy: physics data tables)
+
+    def _species(self, name: str, loc: tuple) -> None:
+        try:
+            from rfcheck.physics.species import parse_species
+        except ImportError:  # dispersion core not installed in this build
+            return
+        try:
+            parse_species(name)
+        except ValueError as exc:
+            self.fail(loc, str(exc))
+
+    def _line(self, name: str, loc: tuple) -> None:
+        from rfcheck.physics.waveguide import line_from_name
+
+        try:
+            line_from_name(name)
+        except ValueError as exc:
+            self.fail(loc, str(exc))
+
+    def _material_ids(self) -> set[str]:
+        from rfcheck import data
+
+        try:
+            return set(data.load("materials.toml").get("material", {}))
+        except FileNotFoundError:
+            return set()
+
+    def _exposure_table(self, name: str, loc: tuple) -> None:
+        from rfcheck import data
+
+        try:
+            tables = data.load("exposure.toml")
+        except FileNotFoundError:
+            return
+        if name not in tables:
+            self.fail(loc, f"unknown reference-level table '{name}'; "
+                           f"use one of: {', '.join(sorted(tables))}")
+
+    # ---- conversion
+
+    def _magnet_sources(self) -> list:
+        mg = self.spec.magnet
+        out: list = []
+        out += [m.Coil(c.id, c.inner_radius, c.outer_radius, c.z, c.length, c.turns, c.current)
+                for c in mg.coils]
+        out += [m.RingMagnet(r.id, r.inner_radius, r.outer_radius, r.z, r.length, r.remanence)
+                for r in mg.rings]
+        out += [m.Multipole(p.id, p.inner_radius, p.outer_radius, p.z, p.length, p.remanence,
+                            p.poles, p.segments, p.orientation) for p in mg.multipoles]
+        if mg.uniform is not None:
+            out.append(m.UniformField(mg.uniform.id, mg.uniform.b))
+        for key in ("axis_table", "field_map"):
+            meas = getattr(mg, key)
+            if meas is None:
+                continue
+            got = self._measured(key, meas)
+            if got is not None:
+                out.append(got)
+        return out
+
+    def _measured(self, key: str, meas: MeasuredSpec):
+        from rfcheck.measured import MeasuredDataError, read_axis_table, read_field_map
+
+        file = (self.path.parent / meas.file).resolve()
+        try:
+            if key == "axis_table":
+                z, b = read_axis_table(file)
+                return m.AxisTable(meas.id, str(file), tuple(map(float, z)), tuple(map(float, b)),
+                                   meas.scales_with_current)
+            r, z, br, bz = read_field_map(file)
+            return m.FieldMap(meas.id, str(file), tuple(map(float, r)), tuple(map(float, z)),
+                              tuple(tuple(map(float, row)) for row in br),
+                              tuple(tuple(map(float, row)) for row in bz),
+                              meas.scales_with_current)
+        except MeasuredDataError as exc:
+            where = f" ({Path(exc.path).name}:{exc.line})" if getattr(exc, "line", None) else ""
+            self.fail(("magnet", key, "file"), f"{exc}{where}")
+        except FileNotFoundError:
+            self.fail(("magnet", key, "file"), f"file not found: {file}")
+        return None
+
+    def _model(self, sources: list) -> m.SourceModel:
+        s = self.spec
+        p = s.plasma
+        if isinstance(p.profile, str):
+            profile = m.DensityProfile(kind=p.profile)
+        else:
+            pts = sorted(p.profile.points)
+            profile = m.DensityProfile(kind=p.profile.kind, exponent=p.profile.exponent,
+                                       edge_length=p.profile.edge_length,
+                                       z=tuple(z for z, _ in pts), shape=tuple(v for _, v in pts))
+        plasma = m.Plasma(
+            density=m.Span(p.density.min, p.density.max),
+            electron_temperature=m.Span(p.electron_temperature.min, p.electron_temperature.max),
+            ions=tuple(m.IonShare(i.species, i.fraction) for i in p.ions),
+            neutral=(m.NeutralGas(p.neutral.species, p.neutral.pressure, p.neutral.temperature)
+                     if p.neutral else None),
+            profile=profile,
+        )
+        chamber = m.Chamber(s.chamber.radius, s.chamber.z.start, s.chamber.z.end,
+                            tuple(m.Landmark(lm.id, lm.z) for lm in s.chamber.landmarks))
+        magnet = m.Magnet(tuple(sources), s.magnet.current_tolerance, s.magnet.trap)
+        feeds = tuple(
+            m.Feed(f.id, f.frequency, f.frequency_tolerance, f.power, f.duty_cycle,
+                   f.max_reflected_power, f.line,
+                   m.Launch(f.launch.z, 1 if f.launch.direction == "+z" else -1, f.launch.mode,
+                            f.launch.angle_to_field),
+                   f.absorption)
+            for f in s.feed)
+        windows = tuple(
+            m.Window(w.id, w.feed, w.z,
+                     tuple(m.WindowLayer(la.material, la.thickness, la.thickness_tolerance)
+                           for la in w.layers),
+                     w.max_absorbed_power, w.diameter)
+            for w in s.window)
+        materials = tuple(m.Material(mt.id, mt.permittivity, mt.loss_tangent, mt.frequency,
+                                     mt.source, "user", (), mt.thermal_conductivity)
+                          for mt in s.material)
+        exposure = None
+        if s.exposure is not None:
+            leak = (m.Leak(s.exposure.leak.power_density, s.exposure.leak.at)
+                    if s.exposure.leak else None)
+            exposure = m.Exposure(s.exposure.table, leak, s.exposure.occupied_distance)
+        return m.SourceModel(
+            source=m.SourceInfo(s.source.name, s.source.revision, s.source.description,
+                                s.source.lab),
+            plasma=plasma, chamber=chamber, magnet=magnet, feeds=feeds, windows=windows,
+            materials=materials, exposure=exposure,
+            review=m.Review(s.review.prepared_by, s.review.checked_by, s.review.approved_by,
+                            s.review.notes),
+        )

@@ -1,0 +1,26 @@
+"""Shared fixtures: the bundled example spec and a way to write variants of it."""
+
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parents[1]
+EXAMPLES = ROOT / "examples"
+DEMO = EXAMPLES / "bench-ecr-reactor.toml"
+
+
+@pytest.fixture
+def demo_text() -> str:
+    return DEMO.read_text(encoding="utf-8")
+
+
+@pytest.fixture
+def write_spec(tmp_path):
+    """Write a spec text into tmp_path and return its path."""
+
+    def write(text: str, name: str = "spec.toml") -> Path:
+        p = tmp_path / name
+        p.write_text(text, encoding="utf-8")
+        return p
+
+    return write
