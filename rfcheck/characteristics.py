@@ -1,0 +1,74 @@
+"""Characteristic numbers of the source, for the JSON and the report (no verdicts here).
+
+Each entry is computed through the public physics and magnet functions, at nominal values
+(current scale 1, nominal frequency) unless its name says otherwise.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from rfcheck.physics.frequencies import critical_density, ecr_field
+from rfcheck.rules.context import Context
+
+
+def _q(value, unit: str, reason: str = "") -> dict:
+    if value is None or (isinstance(value, float) and not math.isfinite(value)):
+        return {"value": None, "unit": unit, "reason": reason or "undefined"}
+    return {"value": float(value), "unit": unit}
+
+
+def _crossings(z: np.ndarray, b: np.ndarray, level: float) -> list[float]:
+    """Axial positions where |B|(z) crosses `level`, by linear interpolation of the samples."""
+    d = b - level
+    idx = np.nonzero(np.signbit(d[:-1]) != np.signbit(d[1:]))[0]
+    out = []
+    for i in idx:
+        t = d[i] / (d[i] - d[i + 1])
+        out.append(float(z[i] + t * (z[i + 1] - z[i])))
+    return out
+
+
+def characteristics(ctx: Context) -> dict:
+    model = ctx.model
+    out: dict = {"feeds": {}, "magnet": {}, "plasma": {}}
+    out["plasma"] = {
+        "density_min": _q(model.plasma.density.min, "m^-3"),
+        "density_max": _q(model.plasma.density.max, "m^-3"),
+        "electron_temperature_min": _q(model.plasma.electron_temperature.min, "eV"),
+        "electron_temperature_max": _q(model.plasma.electron_temperature.max, "eV"),
+    }
+    z = ctx.axis_z
+    try:
+        b_nom = ctx.axis_field(1.0)[0]
+        out["magnet"] = {
+            "axis_field_min": _q(float(b_nom.min()), "T"),
+            "axis_field_max": _q(float(b_nom.max()), "T"),
+            "axis_field_min_position": _q(float(z[np.argmin(b_nom)]), "m"),
+            "current_tolerance": _q(model.magnet.current_tolerance, "1"),
+        }
+    except Exception as exc:  # a broken field model is reported by the rules; keep the run
+        b_nom = None
+        out["magnet"] = {"error": f"{type(exc).__name__}: {exc}"}
+    from rfcheck.rules.resonance import ECR_HARMONIC
+
+    for feed in model.feeds:
+        h = ECR_HARMONIC.get(feed.absorption, 1)
+        b_res = float(ecr_field(feed.frequency, harmonic=h))
+        entry = {
+            "frequency": _q(feed.frequency, "Hz"),
+            "frequency_tolerance": _q(feed.frequency_tolerance, "Hz"),
+            "ecr_field": _q(float(ecr_field(feed.frequency)), "T"),
+            "resonance_field": _q(b_res, "T"),
+            "resonance_harmonic": h,
+            "critical_density": _q(float(critical_density(feed.frequency)), "m^-3"),
+            "peak_to_critical_density": _q(model.plasma.density.max /
+                                           float(critical_density(feed.frequency)), "1"),
+            "average_power": _q(feed.average_power, "W"),
+        }
+        if b_nom is not None:
+            entry["ecr_positions"] = {"value": _crossings(z, b_nom, b_res), "unit": "m"}
+        out["feeds"][feed.id] = entry
+    return out

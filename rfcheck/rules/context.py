@@ -1,0 +1,81 @@
+"""What a rule receives: the model, the envelope and shared, cached physics results.
+
+Expensive things (the magnet's unit fields, the on-axis profile over the current scales) are
+computed once here and shared by every rule, so a run costs one field evaluation, not one per
+rule.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from rfcheck.findings import Finding, Quantity, Severity, Status
+from rfcheck.model import SourceModel
+
+from .envelope import Envelope
+
+AXIS_POINTS = 2001
+
+
+@dataclass
+class Context:
+    model: SourceModel
+    envelope: Envelope
+    rule_id: str = ""
+    severity: Severity = Severity.ERROR
+    _cache: dict = field(default_factory=dict)
+
+    def for_rule(self, rule_id: str, severity: Severity) -> Context:
+        """The same shared caches, labelled for one rule."""
+        return Context(self.model, self.envelope, rule_id, severity, self._cache)
+
+    # ---- shared physics
+
+    @property
+    def field_model(self):
+        if "field" not in self._cache:
+            from rfcheck.magnet.sources import FieldModel
+
+            self._cache["field"] = FieldModel(self.model.magnet)
+        return self._cache["field"]
+
+    @property
+    def axis_z(self) -> np.ndarray:
+        """Axial sample points over the chamber (m)."""
+        if "axis_z" not in self._cache:
+            c = self.model.chamber
+            self._cache["axis_z"] = np.linspace(c.z_start, c.z_end, AXIS_POINTS)
+        return self._cache["axis_z"]
+
+    def axis_field(self, scale: np.ndarray | float | None = None) -> np.ndarray:
+        """|B|(z) on the axis over the chamber, shape (n_scale, n_z), T.
+
+        With `scale` None, the envelope's current scales are used (cached).
+        """
+        scales = self.envelope.current_scale if scale is None else np.atleast_1d(scale)
+        key = ("axis_field", tuple(np.round(scales, 12)))
+        if key not in self._cache:
+            b = self.field_model.axis_field(self.axis_z, scale=np.asarray(scales, dtype=float))
+            self._cache[key] = np.abs(np.atleast_2d(b))
+        return self._cache[key]
+
+    # ---- finding helpers
+
+    def not_applicable(self, subject: str, requirement: str, why: str) -> Finding:
+        return Finding(self.rule_id, subject, Status.NOT_APPLICABLE, self.severity, requirement,
+                       message=why)
+
+    def finding(self, subject: str, requirement: str, *, passed: bool, message: str,
+                measured: Quantity | None = None, limit: Quantity | None = None,
+                margin: Quantity | None = None, worst_case: dict | None = None,
+                warn: bool = False) -> Finding:
+        """A finding whose status follows from `passed`, `warn` and the rule's severity."""
+        if passed:
+            status = Status.WARN if warn else Status.PASS
+        else:
+            status = Status.FAIL if self.severity is Severity.ERROR else Status.WARN
+        return Finding(self.rule_id, subject, status, self.severity, requirement, measured, limit,
+                       margin, dict(worst_case or {}), message)
+
