@@ -1,0 +1,236 @@
+"""Command line: parse arguments, call run, choose the view, map errors to exit codes.
+
+Results go to stdout, messages to stderr. Exceptions are mapped to exit codes once, in
+:func:`main`. Output files are written atomically: a failed run leaves any earlier file as
+it was.
+"""
+
+from __future__ import annotations
+
+import enum
+import json
+import os
+import sys
+import tempfile
+from importlib import resources
+from pathlib import Path
+
+import click
+
+
+class Exit(enum.IntEnum):
+    PASS = 0
+    FAIL = 1
+    BAD_INPUT = 2
+    INTERNAL = 3
+
+
+class UsageProblem(Exception):
+    """A command-line problem that is the user's to fix (exit code 2)."""
+
+
+def write_atomic(path: Path, data: bytes) -> None:
+    """Write `data` to `path` via a temporary file in the same folder and an atomic rename."""
+    path = Path(path)
+    folder = path.parent if str(path.parent) else Path(".")
+    if not folder.is_dir():
+        raise UsageProblem(f"{path}: folder {folder} does not exist")
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=folder)
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
+        os.replace(tmp, path)
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except FileNotFoundError:
+            pass
+        raise
+
+
+def _examples_dir():
+    return resources.files("rfcheck.examples")
+
+
+DEMO_SPEC = "bench-ecr-reactor.toml"
+
+
+@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+@click.version_option(package_name="rfcheck", prog_name="rfcheck")
+def cli() -> None:
+    """Design-review checks for RF- and microwave-heated plasma sources."""
+
+
+def _evaluate(spec: Path, policy_path: Path | None):
+    from rfcheck.rules.policy import load_policy
+    from rfcheck.run import run
+    from rfcheck.spec import load_spec
+
+    policy = load_policy(policy_path)
+    loaded = load_spec(spec)
+    return run(loaded, policy)
+
+
+def _emit(result, json_out: str | None, pdf_out: str | None, quiet_table: bool) -> None:
+    from rfcheck.views import text_table
+
+    if json_out is not None:
+        payload = (json.dumps(result.to_json(), indent=2, allow_nan=False) + "\n").encode()
+        if json_out == "-":
+            sys.stdout.write(payload.decode())
+            sys.stdout.flush()
+        else:
+            write_atomic(Path(json_out), payload)
+    if pdf_out is not None:
+        from rfcheck.report.render import render_pdf
+
+        write_atomic(Path(pdf_out), render_pdf(result))
+    if not (json_out == "-" or quiet_table):
+        click.echo(text_table(result, colour=sys.stdout.isatty()))
+    elif json_out == "-":
+        click.echo(f"verdict: {result.verdict}", err=True)
+
+
+def _exit_for(result, strict: bool) -> Exit:
+    if result.verdict == "fail" or (strict and result.verdict == "warn"):
+        return Exit.FAIL
+    return Exit.PASS
+
+
+@cli.command()
+@click.argument("spec", type=click.Path(path_type=Path))
+@click.option("--policy", "policy_path", type=click.Path(path_type=Path),
+              help="Site policy file (thresholds, rule selection, waivers).")
+@click.option("--json", "json_out", metavar="PATH|-", help="Write the results as JSON ('-' for stdout).")
+@click.option("--pdf", "pdf_out", metavar="PATH", type=str, help="Write the PDF review report.")
+@click.option("--strict", is_flag=True, help="Exit 1 on warnings too.")
+def check(spec: Path, policy_path: Path | None, json_out: str | None, pdf_out: str | None,
+          strict: bool) -> None:
+    """Check a source specification SPEC against the rule catalogue."""
+    result = _evaluate(spec, policy_path)
+    _emit(result, json_out, pdf_out, quiet_table=False)
+    raise SystemExit(_exit_for(result, strict))
+
+
+@cli.command()
+@click.option("--out", "out_dir", type=click.Path(path_type=Path), default=Path("rfcheck-demo"),
+              show_default=True, help="Folder for the example spec, its JSON and PDF report.")
+def demo(out_dir: Path) -> None:
+    """Write the bundled example source, check it and render its PDF review report."""
+    out_dir.mkdir(parents=True, exist_ok=True)
+    examples = _examples_dir()
+    spec_path = out_dir / DEMO_SPEC
+    for item in examples.iterdir():
+        if item.name.endswith((".toml", ".csv")):
+            write_atomic(out_dir / item.name, item.read_bytes())
+    result = _evaluate(spec_path, None)
+    pdf = out_dir / (spec_path.stem + ".pdf")
+    js = out_dir / (spec_path.stem + ".json")
+    _emit(result, str(js), str(pdf), quiet_table=False)
+    click.echo(f"wrote {spec_path}, {js} and {pdf}")
+    raise SystemExit(Exit.PASS if result.verdict != "fail" else Exit.FAIL)
+
+
+@cli.command(name="rules")
+def list_rules() -> None:
+    """List the rule catalogue."""
+    from rfcheck.rules.registry import all_rules
+
+    rules = all_rules()
+    width = max(len(r.id) for r in rules)
+    for r in rules:
+        click.echo(f"{r.id:<{width}}  {r.severity.value:<7}  {r.summary}")
+
+
+@cli.command()
+@click.argument("rule_id")
+def explain(rule_id: str) -> None:
+    """Show the documentation of one rule and its default options."""
+    from rfcheck.rules.policy import load_policy
+    from rfcheck.rules.registry import get_rule
+
+    try:
+        r = get_rule(rule_id)
+    except KeyError:
+        from rfcheck.rules.registry import all_rules
+
+        import difflib
+
+        close = difflib.get_close_matches(rule_id, [x.id for x in all_rules()], n=3)
+        hint = f"; did you mean {', '.join(close)}?" if close else "; see `rfcheck rules`"
+        raise UsageProblem(f"unknown rule '{rule_id}'{hint}") from None
+    policy = load_policy(None)
+    click.echo(f"{r.id}  ({r.severity.value})\n{r.summary}\n")
+    if r.applies:
+        click.echo(f"Applies to: {r.applies}\n")
+    click.echo(r.doc)
+    if r.options:
+        click.echo("\nDefault options:")
+        for name, opt in r.options.items():
+            val = policy.options[r.id][name]
+            click.echo(f"  {name} = {val.text}   ({opt.doc}; source: {val.source})")
+
+
+@cli.command()
+@click.argument("path", type=click.Path(path_type=Path))
+def init(path: Path) -> None:
+    """Write a commented starter specification to PATH (never overwrites)."""
+    if path.exists():
+        raise UsageProblem(f"{path} exists; choose another name (nothing was overwritten)")
+    text = resources.files("rfcheck.examples").joinpath("starter.toml").read_bytes()
+    write_atomic(path, text)
+    click.echo(f"wrote {path}; edit it, then run: rfcheck check {path}")
+
+
+@cli.command()
+def schema() -> None:
+    """Print the JSON Schema of the specification format (for editors)."""
+    from rfcheck.spec import json_schema
+
+    click.echo(json.dumps(json_schema(), indent=2))
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Entry point: map every outcome to an exit code, once."""
+    from rfcheck.spec import InputError
+
+    try:
+        cli.main(args=argv, prog_name="rfcheck", standalone_mode=False)
+    except SystemExit as exc:
+        code = exc.code if isinstance(exc.code, int) else (0 if exc.code is None else 3)
+        return code
+    except InputError as exc:
+        for p in exc.problems:
+            click.echo(f"error: {p}", err=True)
+        n = len(exc.problems)
+        click.echo(f"{n} problem{'s' if n != 1 else ''} in the input; nothing was written.", err=True)
+        return Exit.BAD_INPUT
+    except UsageProblem as exc:
+        click.echo(f"error: {exc}", err=True)
+        return Exit.BAD_INPUT
+    except click.exceptions.Abort:
+        click.echo("aborted", err=True)
+        return Exit.BAD_INPUT
+    except click.ClickException as exc:  # usage errors: unknown option, missing argument
+        exc.show()
+        return Exit.BAD_INPUT
+    except KeyboardInterrupt:
+        return 130
+    except Exception as exc:  # noqa: BLE001 - the one place unexpected failures are mapped
+        import traceback
+
+        click.echo(f"internal error: {type(exc).__name__}: {exc}", err=True)
+        if os.environ.get("RFCHECK_DEBUG"):
+            traceback.print_exc()
+        else:
+            click.echo("(set RFCHECK_DEBUG=1 for the traceback; please report it)", err=True)
+        return Exit.INTERNAL
+    return Exit.PASS
+
+
+def entry() -> None:
+    sys.exit(main())
+
+
+if __name__ == "__main__":
+    entry()

@@ -1,0 +1,121 @@
+"""Run → plain dicts for the templates. No physics here: only selection and formatting."""
+
+from __future__ import annotations
+
+from rfcheck import __version__
+from rfcheck import data
+from rfcheck.findings import Finding, Status
+
+FAMILY_TITLES = {
+    "spec": "Specification sanity",
+    "cutoff": "Cutoffs",
+    "access": "Access to the resonance",
+    "resonance": "Resonances",
+    "magnet": "Magnet field",
+    "line": "RF lines",
+    "window": "Windows",
+    "load": "Load and reflected power",
+    "absorption": "Absorption",
+    "exposure": "Exposure",
+}
+STATUS_TEXT = {
+    Status.PASS: "pass", Status.WARN: "warning", Status.FAIL: "FAIL", Status.ERROR: "not evaluated",
+    Status.WAIVED: "waived", Status.NOT_APPLICABLE: "n/a",
+}
+VERDICT_TEXT = {
+    "pass": "All selected requirements are met over the declared envelope.",
+    "warn": "Requirements are met, with warnings that need a reviewer's attention.",
+    "fail": "One or more requirements are not met (or could not be evaluated) over the declared envelope.",
+}
+
+
+def _finding_row(f: Finding) -> dict:
+    worst = "; ".join(f"{k.replace('_', ' ')} {v.text()}" for k, v in f.worst_case.items())
+    return {
+        "rule": f.rule,
+        "subject": f.subject,
+        "status": f.status.value,
+        "status_text": STATUS_TEXT[f.status],
+        "requirement": f.requirement,
+        "found": f.measured.text() if f.measured else "—",
+        "limit": f.limit.text() if f.limit else "—",
+        "margin": f.margin.text() if f.margin else "—",
+        "worst_case": worst or "—",
+        "message": f.message,
+        "waiver": f.waiver,
+    }
+
+
+def _characteristic_rows(chars: dict) -> list[dict]:
+    from rfcheck.units import format_si
+
+    rows = []
+    for group, title in (("plasma", "Plasma envelope"), ("magnet", "Magnet")):
+        for key, val in chars.get(group, {}).items():
+            rows.append({"group": title, "name": key.replace("_", " "), "value": _fmt(val, format_si)})
+    for fid, entry in chars.get("feeds", {}).items():
+        for key, val in entry.items():
+            rows.append({"group": f"Feed {fid}", "name": key.replace("_", " "),
+                         "value": _fmt(val, format_si)})
+    return rows
+
+
+def _fmt(val, format_si) -> str:
+    if isinstance(val, dict) and "unit" in val:
+        v, unit = val.get("value"), val["unit"]
+        if isinstance(v, list):
+            if unit == "m":
+                return ", ".join(f"{x * 1e3:.1f} mm" for x in v) or "none"
+            return ", ".join(format_si(x, unit) for x in v) or "none"
+        if v is None:
+            return f"— ({val.get('reason', 'undefined')})"
+        if unit == "m^-3":
+            return f"{v:.4g} m⁻³"
+        if unit == "1":
+            return f"{v:.4g}"
+        if unit == "m":
+            return f"{v * 1e3:.2f} mm"
+        if unit == "T":
+            return f"{v * 1e3:.4g} mT"
+        return format_si(v, unit)
+    if isinstance(val, dict):
+        return "; ".join(f"{k}: {_fmt(v, format_si)}" for k, v in val.items())
+    return str(val)
+
+
+def build(run, figures: list[dict] | None = None) -> dict:
+    """Everything the report template shows, as plain data."""
+    families: dict[str, list] = {}
+    for f in run.findings:
+        families.setdefault(f.rule.split(".", 1)[0], []).append(_finding_row(f))
+    order = list(FAMILY_TITLES)
+    sections = [{"id": fam, "title": FAMILY_TITLES.get(fam, fam), "rows": rows}
+                for fam, rows in sorted(families.items(),
+                                        key=lambda kv: order.index(kv[0]) if kv[0] in order else 99)]
+    attention = [_finding_row(f) for f in run.findings
+                 if f.status in (Status.FAIL, Status.ERROR, Status.WARN, Status.WAIVED)]
+    m = run.model
+    return {
+        "title": "RF and plasma-source design review",
+        "source": {"name": run.spec_name, "revision": run.spec_revision,
+                   "lab": m.source.lab if m else "", "description": m.source.description if m else ""},
+        "verdict": run.verdict,
+        "verdict_text": VERDICT_TEXT[run.verdict],
+        "counts": run.counts(),
+        "fingerprint": {"spec_file": run.spec_file, "spec_sha256": run.spec_sha256,
+                        "policy_name": run.policy_name, "policy_sha256": run.policy_sha256,
+                        "tool_version": __version__},
+        "sections": sections,
+        "attention": attention,
+        "characteristics": _characteristic_rows(run.characteristics),
+        "figures": figures or [],
+        "cautions": data.load("cautions.toml")["caution"],
+        "review": {"prepared_by": m.review.prepared_by if m else "",
+                   "checked_by": m.review.checked_by if m else "",
+                   "approved_by": m.review.approved_by if m else "",
+                   "notes": m.review.notes if m else ""},
+        "spec_text": run.spec_text,
+        "policy_texts": [{"name": n, "text": t} for n, t in run.policy_texts],
+        "rules": [{"id": r.id, "summary": r.summary, "severity": r.severity, "applies": r.applies,
+                   "doc": r.doc, "options": r.options} for r in run.rules],
+    }

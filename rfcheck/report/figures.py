@@ -1,0 +1,98 @@
+"""Report figures as SVG strings (matplotlib, Agg, deterministic ids, no timestamps).
+
+Figures plot what the Run holds, or evaluate public physics functions on a grid; they make
+no verdicts.
+"""
+
+from __future__ import annotations
+
+import io
+
+import numpy as np
+
+
+def _mpl():
+    import matplotlib
+
+    matplotlib.use("Agg", force=True)
+    import matplotlib.pyplot as plt
+
+    plt.rcParams.update({
+        "font.family": "DejaVu Sans", "font.size": 8.5, "axes.titlesize": 9,
+        "axes.grid": True, "grid.alpha": 0.3, "figure.dpi": 100, "svg.fonttype": "none",
+    })
+    return plt
+
+
+def _svg(fig, salt: str) -> str:
+    import matplotlib
+
+    plt = _mpl()
+    matplotlib.rcParams["svg.hashsalt"] = f"rfcheck-{salt}"
+    buf = io.StringIO()
+    fig.savefig(buf, format="svg", metadata={"Date": None}, bbox_inches="tight")
+    plt.close(fig)
+    text = buf.getvalue()
+    return text[text.index("<svg"):]
+
+
+def axis_field_figure(run) -> dict | None:
+    """On-axis |B|(z) over the current tolerance, resonance bands of each feed, landmarks."""
+    ctx, model = run.context, run.model
+    if ctx is None:
+        return None
+    try:
+        z = ctx.axis_z
+        b = ctx.axis_field()  # (ns, nz)
+    except Exception:  # the rules already report a broken field model
+        return None
+    from rfcheck.physics.frequencies import ecr_field
+    from rfcheck.rules.resonance import ECR_HARMONIC
+
+    plt = _mpl()
+    fig, ax = plt.subplots(figsize=(6.6, 3.0))
+    zm = z * 1e3
+    mid = b.shape[0] // 2
+    if b.shape[0] > 1:
+        ax.fill_between(zm, b.min(axis=0) * 1e3, b.max(axis=0) * 1e3, color="#4c72b0", alpha=0.25,
+                        lw=0, label=f"current ±{model.magnet.current_tolerance:.1%}")
+    ax.plot(zm, b[mid] * 1e3, color="#1f3f73", lw=1.6, label="|B| on axis, nominal")
+    colours = ["#c44e52", "#dd8452", "#8172b3", "#55a868"]
+    for i, feed in enumerate(model.feeds):
+        h = ECR_HARMONIC.get(feed.absorption)
+        if h is None:
+            continue
+        lo = float(ecr_field(feed.frequency - feed.frequency_tolerance, harmonic=h)) * 1e3
+        hi = float(ecr_field(feed.frequency + feed.frequency_tolerance, harmonic=h)) * 1e3
+        c = colours[i % len(colours)]
+        ax.axhspan(lo, hi, color=c, alpha=0.25, lw=0)
+        ax.axhline(float(ecr_field(feed.frequency, harmonic=h)) * 1e3, color=c, lw=1, ls="--",
+                   label=f"resonance, feed {feed.id} ({feed.frequency / 1e9:.4g} GHz, h={h})")
+    ymax = ax.get_ylim()[1]
+    marks = [(lm.id, lm.z) for lm in model.chamber.landmarks]
+    marks += [(f"window {w.id}", w.z) for w in model.windows]
+    marks += [(f"launch {f.id}", f.launch.z) for f in model.feeds]
+    seen = set()
+    for name, zz in marks:
+        ax.axvline(zz * 1e3, color="0.35", lw=0.8, ls=":")
+        key = round(zz, 6)
+        ax.text(zz * 1e3, ymax * (0.97 - 0.09 * (len([s for s in seen if s == key]))), f" {name}",
+                rotation=90, va="top", ha="left", fontsize=7, color="0.25")
+        seen.add(key)
+    ax.set_xlabel("z (mm)")
+    ax.set_ylabel("|B| (mT)")
+    ax.set_xlim(zm[0], zm[-1])
+    ax.legend(loc="best", fontsize=7, framealpha=0.85)
+    return {"id": "axis-field", "title": "On-axis field and resonance bands", "svg": _svg(fig, "axis"),
+            "caption": "Magnitude of B on the chamber axis at nominal current (line) and over the "
+                       "current tolerance (band); horizontal bands: resonance fields over each "
+                       "feed's frequency tolerance; dotted: landmarks, windows, launchers."}
+
+
+def all_figures(run) -> list[dict]:
+    out = []
+    for make in (axis_field_figure,):
+        fig = make(run)
+        if fig:
+            out.append(fig)
+    return out
