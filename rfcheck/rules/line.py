@@ -51,8 +51,8 @@ def waveguide_band(ctx: Context) -> Iterator[Finding]:
         f_hi = feed.frequency + feed.frequency_tolerance
         band_lo, band_hi = line.recommended_band
         # the binding edge: the one the band comes closest to (relative distance)
-        low_gap = (f_lo - band_lo) / band_lo
-        high_gap = (band_hi - f_hi) / band_hi if math.isfinite(band_hi) else math.inf
+        low_gap = (f_lo - band_lo) / feed.frequency
+        high_gap = (band_hi - f_hi) / feed.frequency if math.isfinite(band_hi) else math.inf
         if low_gap <= high_gap:
             measured, limit, margin = f_lo, band_lo, f_lo - band_lo
             worst = {"frequency": Quantity(f_lo, "Hz")}
