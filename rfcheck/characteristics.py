@@ -71,4 +71,7 @@ def characteristics(ctx: Context) -> dict:
         if b_nom is not None:
             entry["ecr_positions"] = {"value": _crossings(z, b_nom, b_res), "unit": "m"}
         out["feeds"][feed.id] = entry
+    from rfcheck.rules.window_data import window_characteristics
+
+    out["windows"] = window_characteristics(ctx)
     return out

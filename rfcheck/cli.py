@@ -39,6 +39,9 @@ def write_atomic(path: Path, data: bytes) -> None:
     try:
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)
+        umask = os.umask(0)
+        os.umask(umask)
+        os.chmod(tmp, path.stat().st_mode & 0o777 if path.exists() else 0o666 & ~umask)
         os.replace(tmp, path)
     except BaseException:
         try:
@@ -121,7 +124,7 @@ def demo(out_dir: Path) -> None:
     examples = _examples_dir()
     spec_path = out_dir / DEMO_SPEC
     for item in examples.iterdir():
-        if item.name.endswith((".toml", ".csv")):
+        if item.name == DEMO_SPEC or item.name.endswith(".csv"):
             write_atomic(out_dir / item.name, item.read_bytes())
     result = _evaluate(spec_path, None)
     pdf = out_dir / (spec_path.stem + ".pdf")

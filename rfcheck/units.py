@@ -236,18 +236,24 @@ def _describe(q) -> str:
     return f"quantity in {q.units:~}"
 
 
+_PRETTY_UNITS = {"m^-3": "m⁻³", "W/m^2": "W/m²", "1": "", "": ""}
+
+
 def format_si(value: float | None, unit: str) -> str:
     """Compact engineering text for a value in SI, used by the text and PDF views."""
     if value is None or (isinstance(value, float) and not math.isfinite(value)):
         return "—"
-    prefixes = {"Hz": True, "T": True, "W": True, "m": True, "V/m": True, "A": True, "Pa": False}
-    if unit in prefixes and prefixes[unit] and value != 0:
+    value = float(value)
+    prefixed = ("Hz", "T", "W", "m", "V/m", "A")
+    if unit in prefixed and value != 0:
         exp3 = int(math.floor(math.log10(abs(value)) / 3.0) * 3)
         exp3 = max(-9, min(12, exp3))
         if unit == "m":
             exp3 = max(-3, min(0, exp3))
         sym = {12: "T", 9: "G", 6: "M", 3: "k", 0: "", -3: "m", -6: "µ", -9: "n"}[exp3]
         return f"{value / 10**exp3:.4g} {sym}{unit}"
-    if unit == "1" or unit == "":
-        return f"{value:.4g}"
-    return f"{value:.4g} {unit}"
+    pretty = _PRETTY_UNITS.get(unit, unit)
+    if unit == "m^-3" and value != 0:
+        exp = int(math.floor(math.log10(abs(value))))
+        return f"{value / 10**exp:.4g}e{exp} {pretty}"
+    return f"{value:.4g} {pretty}".rstrip()

@@ -53,10 +53,11 @@ def _characteristic_rows(chars: dict) -> list[dict]:
     for group, title in (("plasma", "Plasma envelope"), ("magnet", "Magnet")):
         for key, val in chars.get(group, {}).items():
             rows.append({"group": title, "name": key.replace("_", " "), "value": _fmt(val, format_si)})
-    for fid, entry in chars.get("feeds", {}).items():
-        for key, val in entry.items():
-            rows.append({"group": f"Feed {fid}", "name": key.replace("_", " "),
-                         "value": _fmt(val, format_si)})
+    for kind, label in (("feeds", "Feed"), ("windows", "Window")):
+        for ident, entry in chars.get(kind, {}).items():
+            for key, val in entry.items():
+                rows.append({"group": f"{label} {ident}", "name": key.replace("_", " "),
+                             "value": _fmt(val, format_si)})
     return rows
 
 
@@ -69,8 +70,6 @@ def _fmt(val, format_si) -> str:
             return ", ".join(format_si(x, unit) for x in v) or "none"
         if v is None:
             return f"— ({val.get('reason', 'undefined')})"
-        if unit == "m^-3":
-            return f"{v:.4g} m⁻³"
         if unit == "1":
             return f"{v:.4g}"
         if unit == "m":

@@ -69,16 +69,15 @@ def axis_field_figure(run) -> dict | None:
         ax.axhline(float(ecr_field(feed.frequency, harmonic=h)) * 1e3, color=c, lw=1, ls="--",
                    label=f"resonance, feed {feed.id} ({feed.frequency / 1e9:.4g} GHz, h={h})")
     ymax = ax.get_ylim()[1]
-    marks = [(lm.id, lm.z) for lm in model.chamber.landmarks]
-    marks += [(f"window {w.id}", w.z) for w in model.windows]
-    marks += [(f"launch {f.id}", f.launch.z) for f in model.feeds]
-    seen = set()
-    for name, zz in marks:
+    marks: dict[float, list[str]] = {}
+    for name, zz in ([(lm.id, lm.z) for lm in model.chamber.landmarks]
+                     + [(f"window {w.id}", w.z) for w in model.windows]
+                     + [(f"launch {f.id}", f.launch.z) for f in model.feeds]):
+        marks.setdefault(round(zz, 6), []).append(name)
+    for zz, names in sorted(marks.items()):
         ax.axvline(zz * 1e3, color="0.35", lw=0.8, ls=":")
-        key = round(zz, 6)
-        ax.text(zz * 1e3, ymax * (0.97 - 0.09 * (len([s for s in seen if s == key]))), f" {name}",
-                rotation=90, va="top", ha="left", fontsize=7, color="0.25")
-        seen.add(key)
+        ax.text(zz * 1e3, ymax * 0.98, " " + " / ".join(names), rotation=90, va="top", ha="left",
+                fontsize=7, color="0.25")
     ax.set_xlabel("z (mm)")
     ax.set_ylabel("|B| (mT)")
     ax.set_xlim(zm[0], zm[-1])
@@ -90,8 +89,10 @@ def axis_field_figure(run) -> dict | None:
 
 
 def all_figures(run) -> list[dict]:
+    from .figure_window import window_figure
+
     out = []
-    for make in (axis_field_figure,):
+    for make in (axis_field_figure, window_figure):
         fig = make(run)
         if fig:
             out.append(fig)

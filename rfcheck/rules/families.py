@@ -1,3 +1,4 @@
 """Importing this module registers every rule family with the registry."""
 
-from rfcheck.rules import cutoff, line, resonance  # noqa: F401
+from rfcheck.rules import cutoff, exposure, line, resonance  # noqa: F401
+from rfcheck.rules import window  # noqa: F401  (window.*)

@@ -1,28 +1,36 @@
-"""The RF line of each feed: operating band and (later) breakdown."""
+"""The RF line of each feed: operating band and air breakdown."""
 
 from __future__ import annotations
 
 import math
 from collections.abc import Iterator
 
+import numpy as np
+
 from rfcheck.findings import Finding, Quantity, Severity
+from rfcheck.physics.rfpower import (breakdown_field, max_forward_power, max_net_power,
+                                     te10_max_power, te10_peak_field, vswr)
 from rfcheck.physics.waveguide import line_from_name
 
 from .context import Context
-from .registry import rule
+from .registry import Option, rule
+from .window_data import window_analysis
 
 
 @rule("line.waveguide-band", severity=Severity.ERROR,
       summary="Each feed's frequency band lies in its line's single-mode band "
               "(warning outside the recommended band).",
-      applies="feeds on a standard or user-defined waveguide or coaxial line; not free space")
+      applies="feeds on a rectangular, circular or coaxial line; not free space")
 def waveguide_band(ctx: Context) -> Iterator[Finding]:
     """What it checks
     The feed's frequency band f ± tolerance against its line: the dominant mode must
-    propagate (f > f_c of TE10 / TE11) and the next mode must stay cut off (f below the
-    lower of TE20 and TE01 for rectangular guide): a failure otherwise. Inside that
-    single-mode band but outside the recommended operating band (about 1.25–1.9 f_c for
-    rectangular guide, from the EIA band edges) the finding is a warning.
+    propagate (f > f_c of TE10 for rectangular, TE11 for circular guide; the TEM mode of a
+    coaxial line has no cutoff) and the next mode must stay cut off (the lower of TE20 and
+    TE01 for rectangular guide, TM01 for circular guide, TE11 for coaxial line): a failure
+    otherwise. Inside that single-mode band but outside the recommended operating band the
+    finding is a warning: about 1.25–1.9 f_c for rectangular guide (from the EIA band
+    edges), 1.1 f_c … 0.95 f_TM01 for circular guide, up to 0.95 f_TE11 for coaxial line.
+    Free-space (quasi-optical) feeds are not applicable.
 
     Why it matters
     Near cutoff the guide wavelength and wave impedance change fast with frequency, wall
@@ -32,17 +40,26 @@ def waveguide_band(ctx: Context) -> Iterator[Finding]:
 
     Equation
     TE10: f_c = c / (2a); TE20: c / a; TE01: c / (2b); λ_g = λ0 / √(1 − (f_c/f)²).
+    Circular: f_c = p c / (π d) with p'11 = 1.841 (TE11), p01 = 2.405 (TM01).
+    Coaxial TE11: f_c ≈ 2c / (π (d + D)) (mean circumference; slightly low, conservative).
 
     References
     EIA RS-261-B (1979) and IEC 60153-2 (rectangular waveguide sizes and bands);
-    D. M. Pozar, Microwave Engineering, ch. 3.
+    D. M. Pozar, Microwave Engineering, ch. 3 (§3.3 rectangular, §3.4 circular, §3.5 coaxial).
     """
     for feed in ctx.model.feeds:
         subject = f"feed {feed.id}"
         line = line_from_name(feed.line)
-        requirement = f"{line.name}: single-mode band, recommended band " \
-                      f"{line.recommended_band[0] / 1e9:.3g}–{line.recommended_band[1] / 1e9:.3g} GHz" \
-            if line.cutoff > 0 else f"{line.name}"
+        if line.cutoff > 0:
+            lo, hi = line.recommended_band
+            requirement = (f"{line.name}: single-mode band, recommended band "
+                           f"{lo / 1e9:.3g}–{hi / 1e9:.3g} GHz")
+        elif math.isfinite(line.next_cutoff):  # TEM line: bounded above by its first higher mode
+            requirement = (f"{line.name}: below the {line.next_mode} cutoff "
+                           f"{line.next_cutoff / 1e9:.3g} GHz, recommended ≤ "
+                           f"{line.recommended_band[1] / 1e9:.3g} GHz")
+        else:
+            requirement = line.name
         if line.kind == "free-space":
             yield ctx.not_applicable(subject, requirement, "quasi-optical (free-space) feed: no "
                                      "waveguide cutoff")
@@ -62,7 +79,7 @@ def waveguide_band(ctx: Context) -> Iterator[Finding]:
         propagates = f_lo > line.cutoff
         single = f_hi < line.next_cutoff
         in_band = low_gap >= 0 and high_gap >= 0
-        ratio = f"{feed.frequency / line.cutoff:.3f} f_c" if line.cutoff > 0 else ""
+        ratio = f" ({feed.frequency / line.cutoff:.3f} f_c)" if line.cutoff > 0 else ""
         if not propagates:
             msg = (f"{f_lo / 1e9:.4g} GHz is at or below the {line.dominant_mode} cutoff "
                    f"{line.cutoff / 1e9:.4g} GHz of {line.name}: the guide does not propagate")
@@ -71,14 +88,118 @@ def waveguide_band(ctx: Context) -> Iterator[Finding]:
                    f"of {line.name}: more than one mode propagates")
         elif not in_band:
             edge = "below" if low_gap < 0 else "above"
-            msg = (f"{feed.frequency / 1e9:.4g} GHz ({ratio}) lies {edge} the recommended band of "
+            msg = (f"{feed.frequency / 1e9:.4g} GHz{ratio} lies {edge} the recommended band of "
                    f"{line.name} ({band_lo / 1e9:.3g}–{band_hi / 1e9:.3g} GHz) but in its "
                    "single-mode band")
         else:
-            msg = (f"{feed.frequency / 1e9:.4g} GHz ± {feed.frequency_tolerance / 1e6:.3g} MHz "
-                   f"({ratio}) lies in the recommended band of {line.name} "
+            msg = (f"{feed.frequency / 1e9:.4g} GHz ± {feed.frequency_tolerance / 1e6:.3g} MHz"
+                   f"{ratio} lies in the recommended band of {line.name} "
                    f"({band_lo / 1e9:.3g}–{band_hi / 1e9:.3g} GHz)")
         yield ctx.finding(subject, requirement, passed=propagates and single,
                           warn=not in_band, message=msg,
                           measured=Quantity(measured, "Hz"), limit=Quantity(limit, "Hz"),
                           margin=Quantity(margin, "Hz"), worst_case=worst)
+
+
+def _watts(x: float) -> str:
+    return Quantity(x, "W").text()
+
+
+@rule("line.breakdown", severity=Severity.ERROR,
+      summary="Peak field in each feed's guide at peak power, standing wave of its windows "
+              "included, stays under the air breakdown field divided by a safety factor.",
+      options={"safety_factor": Option("ratio", "factor (in field) between the breakdown "
+                                                "field of air at 1 atm and the allowed peak field")},
+      applies="feeds on rectangular guide (TE10); not circular, coaxial or free-space feeds")
+def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
+    """What it checks
+    The largest electric field in the feed's rectangular guide, at the centre of the broad
+    wall at a standing-wave maximum: E_pk = (1 + |Γ|) E0 at the feed's peak forward power,
+    with |Γ| the worst reflection (over f ± tolerance and thickness tolerance, as in
+    window.reflection) of the windows on that feed (0 without windows), at the frequency of
+    f ± tolerance where E0 is largest. The limit is the breakdown field of dry air at 1 atm,
+    3 MV/m, divided by safety_factor. The message gives the theoretical power capacity
+    P_max of the matched guide, P_max/VSWR (largest net power with that mismatch) and the
+    peak forward power the limit allows.
+
+    This is an upper bound, not a rating: it holds for a clean, dry, smooth guide at sea
+    level with its field uniform over centimetre gaps. Flange gaps and misaligned joints,
+    humidity, dust and swarf, burrs, altitude (lower pressure) and long pulses all lower the
+    real threshold; pressurising with dry air, N2 or SF6 raises it. The reflection of the
+    plasma load (total before ignition, when the field doubles) is not included here; the
+    load.* rules judge it. On the vacuum side of a window the limit is not air breakdown but
+    multipactor and surface flashover, which this rule does not assess. It supports review
+    and defers to the line supplier's ratings, local codes and qualified practice.
+
+    Not applicable to free-space feeds (no guide), and to circular and coaxial lines, for
+    which rfcheck has no peak-field formula yet (TE11 and TEM field maxima differ from TE10).
+
+    Why it matters
+    An arc in the air-filled guide runs back towards the generator, burns flanges and
+    windows and can destroy the circulator or the magnetron. A window that reflects strongly
+    raises the standing-wave maximum between it and the generator.
+
+    Equation
+    E0 = √(4 Z_TE10 P / (a b)), Z_TE10 = η0 / √(1 − (f_c/f)²);  E_pk = (1 + |Γ|) E0;
+    limit E_bd / s with E_bd = 3 MV/m;  P_max = a b E_bd² √(1 − (f_c/f)²) / (4 η0);
+    largest net power P_max / VSWR; largest peak forward power P_max / (s² (1 + |Γ|)²).
+
+    Options
+    safety_factor: s, in field (default 2, i.e. a quarter of the theoretical power; common
+    practice applies 2 to 4 in field for flange gaps, humidity, dust and finish).
+
+    References
+    D. M. Pozar, Microwave Engineering, 4th ed. (2012), §2.3 (standing waves), §3.3 (TE10
+    power flow and power capacity); A. D. MacDonald, Microwave Breakdown in Gases (Wiley
+    1966). Air at 1 atm: 3 MV/m (30 kV/cm), common practice.
+    """
+    e_bd = float(breakdown_field())
+    limit = e_bd / safety_factor
+    requirement = (f"peak field ≤ E_bd(air, 1 atm) / {safety_factor:.3g} = "
+                   f"{limit / 1e6:.3g} MV/m (theoretical upper bound)")
+    for feed in ctx.model.feeds:
+        subject = f"feed {feed.id}"
+        line = line_from_name(feed.line)
+        if line.kind != "rectangular":
+            why = ("quasi-optical (free-space) feed: no guide to break down" if line.kind == "free-space"
+                   else f"{line.kind} line ({line.dominant_mode}): no peak-field formula in rfcheck "
+                        "yet; check against the supplier's power rating")
+            yield ctx.not_applicable(subject, requirement, why)
+            continue
+        a_dim, b_dim = line.dimension("a"), line.dimension("b")
+        windows = [w for w in ctx.model.windows if w.feed == feed.id]
+        gamma, source = 0.0, "no window on the feed"
+        for w in windows:
+            g = window_analysis(ctx, w).worst_gamma[0]
+            if math.isnan(g) or g > gamma:
+                gamma, source = g, f"window {w.id}"
+            if math.isnan(g):
+                break
+        f = ctx.envelope.frequencies(feed)
+        e_pk = te10_peak_field(feed.power, a_dim, b_dim, f, gamma)
+        i = int(np.argmax(np.where(np.isnan(e_pk), np.inf, e_pk)))
+        worst_f, worst_e = float(f[i]), float(e_pk[i])
+        where = {"frequency": Quantity(worst_f, "Hz")} if f.size > 1 else {}
+        where["gamma"] = Quantity(gamma, "1")
+        if math.isnan(worst_e):
+            yield ctx.finding(subject, requirement, passed=False,
+                              message=f"peak field undefined: {line.name} does not propagate over "
+                                      f"f ± tolerance, or the window reflection is undefined "
+                                      f"(see line.waveguide-band)",
+                              measured=Quantity(None, "V/m", "no propagating TE10 wave"),
+                              limit=Quantity(limit, "V/m"), worst_case=where)
+            continue
+        p_max = float(te10_max_power(a_dim, b_dim, worst_f, e_bd))
+        p_net = float(max_net_power(p_max, gamma))
+        p_fwd = float(max_forward_power(p_max, gamma)) / safety_factor ** 2
+        margin = limit - worst_e
+        msg = (f"peak field {Quantity(worst_e, 'V/m').text()} at {_watts(feed.power)} peak "
+               f"forward power with 1 + |Γ| = {1 + gamma:.3g} ({source}) at {worst_f / 1e9:.5g} GHz, against "
+               f"{limit / 1e6:.3g} MV/m (air at 1 atm {e_bd / 1e6:.3g} MV/m / {safety_factor:.3g}); "
+               f"theoretical P_max of matched {line.name} {_watts(p_max)}, P_max/VSWR "
+               f"{_watts(p_net)} at VSWR {float(vswr(gamma)):.3g}; the limit allows "
+               f"{_watts(p_fwd)} peak forward. An upper bound: flange gaps, humidity, dust and the "
+               "load's reflection lower it")
+        yield ctx.finding(subject, requirement, passed=margin >= 0, message=msg,
+                          measured=Quantity(worst_e, "V/m"), limit=Quantity(limit, "V/m"),
+                          margin=Quantity(margin, "V/m"), worst_case=where)

@@ -1,0 +1,1 @@
+"""Invented example sources, shipped inside the wheel as rfcheck.examples."""

@@ -1,0 +1,86 @@
+"""Report figure: reflection |Γ| of each window against frequency (no verdicts drawn here).
+
+The window numbers come from the same cached computation the window rules use
+(rfcheck.rules.window_data); the limit line is the max_gamma option the run applied.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from rfcheck.report.figures import _mpl, _svg
+
+#: Half-width of the plotted frequency range as a fraction of the feed frequency (at least
+#: three times the feed's tolerance).
+PLOT_SPAN = 0.1
+PLOT_POINTS = 401
+
+
+def _limit(run) -> float | None:
+    """The |Γ| limit window.reflection used in this run (None if the rule was not run)."""
+    for use in getattr(run, "rules", ()):
+        if use.id == "window.reflection":
+            opt = use.options.get("max_gamma")
+            return None if opt is None else float(opt["si"])
+    return None
+
+
+def window_figure(run) -> dict | None:
+    """|Γ| versus frequency for each window: nominal thickness (line), spread over the
+    thickness tolerance (band), the feed's f ± tolerance (shaded) and the limit (dashed)."""
+    ctx, model = run.context, run.model
+    if ctx is None or model is None or not model.windows:
+        return None
+    from rfcheck.rules.window_data import window_analysis
+
+    analyses = []
+    for w in model.windows:
+        try:
+            analyses.append(window_analysis(ctx, w))
+        except (KeyError, ValueError):  # unknown feed, line or material: the rules report it
+            continue
+    if not analyses:
+        return None
+    limit = _limit(run)
+    plt = _mpl()
+    fig, axes = plt.subplots(len(analyses), 1, figsize=(6.6, 2.5 * len(analyses)), squeeze=False)
+    for ax, a in zip(axes[:, 0], analyses):
+        feed = a.feed
+        half = max(PLOT_SPAN * feed.frequency, 3.0 * feed.frequency_tolerance)
+        half = min(half, 0.45 * feed.frequency)
+        f = np.linspace(feed.frequency - half, feed.frequency + half, PLOT_POINTS)
+        g = a.gamma_over(f)  # (n_combo, n_f), NaN where the line does not propagate
+        fg = f / 1e9
+        with np.errstate(invalid="ignore"):
+            if g.shape[0] > 1 and np.isfinite(g).any():
+                ax.fill_between(fg, np.nanmin(g, axis=0), np.nanmax(g, axis=0), color="#4c72b0",
+                                alpha=0.25, lw=0, label="thickness tolerance")
+        ax.plot(fg, g[a.nominal], color="#1f3f73", lw=1.5, label="nominal thickness")
+        lo, hi = feed.frequency - feed.frequency_tolerance, feed.frequency + feed.frequency_tolerance
+        if hi > lo:
+            ax.axvspan(lo / 1e9, hi / 1e9, color="#dd8452", alpha=0.25, lw=0,
+                       label=f"feed {feed.id}: f ± tolerance")
+        else:
+            ax.axvline(feed.frequency / 1e9, color="#dd8452", lw=1.2, label=f"feed {feed.id}")
+        if limit is not None:
+            ax.axhline(limit, color="#c44e52", lw=1.0, ls="--", label=f"limit |Γ| = {limit:.3g}")
+        worst, wf, _ = a.worst_gamma
+        if math.isfinite(worst):
+            ax.plot([wf / 1e9], [worst], "o", ms=4, color="#c44e52")
+        stack = " + ".join(f"{la.thickness * 1e3:.4g} mm {la.material}" for la in a.window.layers)
+        ax.set_title(f"window {a.window.id}: {stack} in {a.line.name}", fontsize=8.5)
+        ax.set_xlabel("frequency (GHz)")
+        ax.set_ylabel("|Γ|")
+        ax.set_xlim(fg[0], fg[-1])
+        ax.set_ylim(0.0, 1.0)
+        ax.legend(loc="upper right", fontsize=7, framealpha=0.85)
+    fig.tight_layout()
+    return {"id": "window-reflection", "title": "Window reflection against frequency",
+            "svg": _svg(fig, "window"),
+            "caption": "Magnitude of the reflection coefficient of each window in its feed's line "
+                       "(TE10/TE11 guide mode, or a plane wave at normal incidence): nominal "
+                       "thickness (line) and its spread over the thickness tolerance (band); "
+                       "shaded: the feed's f ± tolerance; dashed: the |Γ| limit of the policy; "
+                       "dot: the worst point judged by window.reflection."}

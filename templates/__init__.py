@@ -1,0 +1,1 @@
+"""Report templates and stylesheet, shipped inside the wheel as rfcheck.templates."""
