@@ -20,17 +20,6 @@ def _q(value, unit: str, reason: str = "") -> dict:
     return {"value": float(value), "unit": unit}
 
 
-def _crossings(z: np.ndarray, b: np.ndarray, level: float) -> list[float]:
-    """Axial positions where |B|(z) crosses `level`, by linear interpolation of the samples."""
-    d = b - level
-    idx = np.nonzero(np.signbit(d[:-1]) != np.signbit(d[1:]))[0]
-    out = []
-    for i in idx:
-        t = d[i] / (d[i] - d[i + 1])
-        out.append(float(z[i] + t * (z[i + 1] - z[i])))
-    return out
-
-
 def characteristics(ctx: Context) -> dict:
     model = ctx.model
     out: dict = {"feeds": {}, "magnet": {}, "plasma": {}}
@@ -69,7 +58,13 @@ def characteristics(ctx: Context) -> dict:
             "average_power": _q(feed.average_power, "W"),
         }
         if b_nom is not None:
-            entry["ecr_positions"] = {"value": _crossings(z, b_nom, b_res), "unit": "m"}
+            from rfcheck.magnet.geometry import resonance_crossings
+
+            rel_tol = feed.frequency_tolerance / feed.frequency
+            crossings = resonance_crossings(ctx.nominal_profile(), b_res, rel_tol)
+            entry["ecr_positions"] = {"value": [c.z for c in crossings], "unit": "m"}
+            entry["ecr_gradients"] = {"value": [c.gradient for c in crossings], "unit": "T/m"}
+            entry["ecr_zone_widths"] = {"value": [c.width for c in crossings], "unit": "m"}
         out["feeds"][feed.id] = entry
     from rfcheck.rules.window_data import window_characteristics
 

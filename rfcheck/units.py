@@ -114,7 +114,7 @@ def registry():
 def _normalise_unit(text: str) -> str:
     text = text.strip()
     text = text.replace("^", "**").replace("·", "*").replace("µ", "u").replace("μ", "u")
-    text = re.sub(r"\bgauss\b", "G", text)
+    text = re.sub(r"\b[Gg]auss\b", "G", text)
     text = re.sub(r"\bkgauss\b", "kG", text)
     if text in ("", "1"):
         return ""

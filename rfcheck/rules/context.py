@@ -38,7 +38,7 @@ class Context:
         if "field" not in self._cache:
             from rfcheck.magnet.sources import FieldModel
 
-            self._cache["field"] = FieldModel(self.model.magnet)
+            self._cache["field"] = FieldModel.for_chamber(self.model.magnet, self.model.chamber)
         return self._cache["field"]
 
     @property
@@ -60,6 +60,32 @@ class Context:
             b = self.field_model.axis_field(self.axis_z, scale=np.asarray(scales, dtype=float))
             self._cache[key] = np.abs(np.atleast_2d(b))
         return self._cache[key]
+
+    def axis_profiles(self):
+        """On-axis profiles (rfcheck.magnet.geometry.AxisProfile) for every envelope current scale."""
+        if "axis_profiles" not in self._cache:
+            from rfcheck.magnet.geometry import axis_profiles
+
+            self._cache["axis_profiles"] = axis_profiles(
+                self.field_model, self.model.chamber, self.envelope.current_scale)
+        return self._cache["axis_profiles"]
+
+    def nominal_profile(self):
+        """The on-axis profile at current scale 1."""
+        if "nominal_profile" not in self._cache:
+            from rfcheck.magnet.geometry import axis_profile
+
+            self._cache["nominal_profile"] = axis_profile(self.field_model, self.model.chamber, 1.0)
+        return self._cache["nominal_profile"]
+
+    def trap_geometries(self):
+        """Trap geometry (B_min, maxima, wall field, last closed |B|) per envelope current scale."""
+        if "trap" not in self._cache:
+            from rfcheck.magnet.geometry import trap_geometries
+
+            self._cache["trap"] = trap_geometries(self.field_model, self.model.chamber,
+                                                  self.envelope.current_scale)
+        return self._cache["trap"]
 
     # ---- finding helpers
 

@@ -63,8 +63,8 @@ def leak_level(ctx: Context, *, max_fraction: float) -> Iterator[Finding]:
         d_ok = distance_for_level(exp.leak.power_density, exp.leak.distance, limit)
         passed = s <= limit
         msg = (f"leak estimate {s:.3g} W/m² at {exp.occupied_distance:g} m against "
-               f"{limit:.3g} W/m² ({worst.population}, {worst.standard}); the estimate reaches the "
-               f"level at {d_ok:.3g} m. Survey the installed source: this is an estimate.")
+               f"{limit:.3g} W/m² ({worst.title}); the estimate reaches the level at "
+               f"{d_ok * 1e3:.3g} mm. An estimate: survey the installed source.")
         yield ctx.finding(subject, requirement, passed=passed, message=msg,
                           measured=Quantity(s, "W/m^2"), limit=Quantity(limit, "W/m^2"),
                           margin=Quantity(limit - s, "W/m^2"),

@@ -1,0 +1,385 @@
+"""Resonance geometry of a magnet in a chamber: profiles, extrema, closure, crossings, ratios.
+
+Everything is SI (m, T, rad) and works on a :class:`~rfcheck.magnet.sources.FieldModel`
+and a :class:`~rfcheck.model.Chamber` (axis along z from z_start to z_end, radius R).
+Points are given in cylindrical coordinates (r, phi, z).
+
+Conventions
+-----------
+* On-axis profile: signed B_z and |B| on a dense grid of the chamber length; crossings,
+  gradients and axial extrema are taken from a cubic spline of B_z through it (roots by
+  scipy.optimize.brentq, extrema by bounded scalar minimisation), not from grid nodes.
+* Injection side is the z_start side, extraction side the z_end side. B_inj (B_ext) is the
+  largest on-axis |B| between z_start (z_end) and the on-axis minimum, inside the chamber.
+* B_min is the smallest |B| in the plasma volume r <= R, z_start <= z <= z_end (a grid
+  search refined by nested zooming); it may lie off axis.
+* B_rad is the largest |B| over azimuth on the wall r = R at the axial position of B_min.
+* The last closed |B| surface is the smallest |B| on the chamber boundary (the wall and
+  both end planes): every |B| surface below it closes inside the chamber.
+* Mirror ratio: min(B_inj, B_ext) / (on-axis minimum of |B|): the weaker mirror governs.
+* Resonance-zone width for a relative frequency tolerance delta (f +/- delta f): the
+  resonance field spans B_res (1 +/- delta), so the zone half-width on the axis is
+  B_res delta / |d|B|/dz| and the full width twice that (first order in delta).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.interpolate import CubicSpline
+from scipy.optimize import brentq, minimize_scalar
+
+from rfcheck.model import Chamber
+
+__all__ = [
+    "GeometryGrid", "FieldPoint", "AxisProfile", "Crossing", "WallField", "RZField",
+    "TrapGeometry", "MinBRatios", "FieldUndefinedError",
+    "axis_profile", "axis_profiles", "axial_extrema", "resonance_crossings", "wall_field",
+    "trap_geometry", "trap_geometries", "min_b_ratios", "rz_field",
+]
+
+
+class FieldUndefinedError(ValueError):
+    """The field is NaN inside the chamber (measured data do not cover it)."""
+
+
+@dataclass(frozen=True)
+class GeometryGrid:
+    """Sampling of the chamber; searches refine from these grids by nested zooming."""
+
+    axis_points: int = 1201
+    wall_z: int = 121
+    azimuths: int = 72  # over 2 pi, for models that depend on azimuth
+    volume_r: int = 9
+    volume_z: int = 61
+    volume_azimuths: int = 36
+    end_r: int = 13
+    zoom_levels: int = 14
+
+
+@dataclass(frozen=True)
+class FieldPoint:
+    """|B| (T) at a point (r, phi, z) in m, rad, m; `where` names the part of the chamber."""
+
+    b: float
+    r: float
+    phi: float
+    z: float
+    where: str = ""
+
+
+@dataclass(frozen=True)
+class AxisProfile:
+    """On-axis field for one current scale: z (m), signed B_z (T) and |B| (T)."""
+
+    z: np.ndarray
+    b_z: np.ndarray
+    b: np.ndarray
+    scale: float
+
+    def spline(self) -> CubicSpline:
+        return CubicSpline(self.z, self.b_z)
+
+
+@dataclass(frozen=True)
+class Crossing:
+    """An on-axis crossing of |B| = b_res: position (m), gradient d|B|/dz (T/m, signed),
+    zone half-width and full width (m) for the frequency tolerance."""
+
+    z: float
+    b: float
+    gradient: float
+    half_width: float
+    width: float
+
+
+@dataclass(frozen=True)
+class WallField:
+    """|B| (T) on the wall r = R: z (m), phi (rad), b shaped (len(z), len(phi))."""
+
+    z: np.ndarray
+    phi: np.ndarray
+    b: np.ndarray
+    scale: float
+
+
+@dataclass(frozen=True)
+class RZField:
+    """|B| (T) in the r-z half plane at azimuth phi, b shaped (len(r), len(z)) (figures)."""
+
+    r: np.ndarray
+    z: np.ndarray
+    b: np.ndarray
+    phi: float
+    scale: float
+
+
+@dataclass(frozen=True)
+class MinBRatios:
+    """Field ratios of a minimum-B trap over B_ECR."""
+
+    injection: float
+    extraction: float
+    radial: float
+    minimum: float
+
+
+@dataclass(frozen=True)
+class TrapGeometry:
+    """The characteristic fields of one current scale (see the module conventions)."""
+
+    scale: float
+    axis_min: FieldPoint
+    injection_max: FieldPoint
+    extraction_max: FieldPoint
+    volume_min: FieldPoint
+    radial_wall: FieldPoint
+    last_closed: FieldPoint
+    mirror_ratio: float
+
+
+# --------------------------------------------------------------------------- helpers
+
+
+def _cartesian(r, phi, z) -> np.ndarray:
+    r, phi, z = np.broadcast_arrays(r, phi, z)
+    return np.stack([r * np.cos(phi), r * np.sin(phi), z], axis=-1)
+
+
+def _defined(b: np.ndarray, what: str) -> np.ndarray:
+    if np.isnan(b).any():
+        raise FieldUndefinedError(
+            f"the field is undefined (NaN) on the {what}; measured field data do not cover "
+            "the chamber")
+    return b
+
+
+def _scales(scales) -> np.ndarray:
+    s = np.atleast_1d(np.asarray(scales, dtype=float))
+    if s.ndim != 1:
+        raise ValueError("scales must be a scalar or a 1-D array")
+    return s
+
+
+def _zoom(model, scales, start, step, lower, upper, periodic, levels, maximise=False):
+    """Nested-grid refinement of min (or max) |B| over cylindrical coordinates.
+
+    `start` (S, 3) holds (r, phi, z) per scale; `step` (3,) the initial half-window; a
+    zero step freezes a coordinate. Each level evaluates a 5-point grid per free
+    coordinate within +/- step around the best point, then halves the step.
+    """
+    free = np.nonzero(step > 0)[0]
+    axes = np.meshgrid(*([np.linspace(-1.0, 1.0, 5)] * len(free)), indexing="ij")
+    unit = np.zeros((axes[0].size if len(free) else 1, 3))
+    for k, i in enumerate(free):
+        unit[:, i] = axes[k].ravel()
+    x = np.array(start, dtype=float)
+    step = np.array(step, dtype=float)
+    rows = np.arange(len(x))
+    for _ in range(levels if len(free) else 1):
+        cand = x[:, None, :] + unit[None] * step
+        bounded = ~periodic
+        cand[..., bounded] = np.clip(cand[..., bounded], lower[bounded], upper[bounded])
+        b = np.linalg.norm(model.field_per_scale(_cartesian(cand[..., 0], cand[..., 1],
+                                                            cand[..., 2]), scales), axis=-1)
+        b = _defined(b, "chamber")
+        best = np.argmax(b, axis=1) if maximise else np.argmin(b, axis=1)
+        x = cand[rows, best]
+        value = b[rows, best]
+        step = step / 2.0
+    return x, value
+
+
+def _point(x, b, where) -> FieldPoint:
+    return FieldPoint(float(b), float(x[0]), float(x[1]) % (2 * np.pi) if x[0] > 0 else 0.0,
+                      float(x[2]), where)
+
+
+# --------------------------------------------------------------------------- on the axis
+
+
+def axis_profiles(model, chamber: Chamber, scales, grid: GeometryGrid | None = None):
+    """On-axis profiles over the chamber for each scale (one field evaluation for all)."""
+    grid = grid or GeometryGrid()
+    s = _scales(scales)
+    z = np.linspace(chamber.z_start, chamber.z_end, grid.axis_points)
+    points = _cartesian(0.0, 0.0, z)
+    field = model.field(points, s)
+    _defined(field, "axis")
+    return tuple(AxisProfile(z, field[i, :, 2].copy(), np.linalg.norm(field[i], axis=-1),
+                             float(s[i])) for i in range(len(s)))
+
+
+def axis_profile(model, chamber: Chamber, scale: float = 1.0,
+                 grid: GeometryGrid | None = None) -> AxisProfile:
+    """On-axis profile (z, signed B_z, |B|) over the chamber at one current scale."""
+    return axis_profiles(model, chamber, [scale], grid)[0]
+
+
+def _extremum(spline, z, b, lo, hi, maximise) -> FieldPoint:
+    """Extremum of |B_z| from the spline within [lo, hi] (grid start, bounded refinement)."""
+    inside = (z >= lo) & (z <= hi)
+    idx = np.nonzero(inside)[0]
+    pick = idx[np.argmax(b[idx]) if maximise else np.argmin(b[idx])]
+    sign = -1.0 if maximise else 1.0
+    a, c = z[max(pick - 1, idx[0])], z[min(pick + 1, idx[-1])]
+    best_z, best_b = z[pick], b[pick]
+    if c > a:
+        res = minimize_scalar(lambda t: sign * abs(float(spline(t))), bounds=(a, c),
+                              method="bounded", options={"xatol": 1e-9})
+        if sign * abs(float(spline(res.x))) < sign * best_b:
+            best_z, best_b = float(res.x), abs(float(spline(res.x)))
+    return FieldPoint(float(best_b), 0.0, 0.0, float(best_z), "axis")
+
+
+def axial_extrema(profile: AxisProfile) -> tuple[FieldPoint, FieldPoint, FieldPoint]:
+    """(on-axis minimum, injection-side maximum, extraction-side maximum) of |B|."""
+    spline = profile.spline()
+    z, b = profile.z, np.abs(profile.b_z)
+    low = _extremum(spline, z, b, z[0], z[-1], maximise=False)
+    inj = _extremum(spline, z, b, z[0], low.z, maximise=True)
+    ext = _extremum(spline, z, b, low.z, z[-1], maximise=True)
+    return low, inj, ext
+
+
+def resonance_crossings(profile: AxisProfile, b_res: float,
+                        relative_tolerance: float = 0.0) -> tuple[Crossing, ...]:
+    """Where |B| = b_res on the axis, with d|B|/dz and the zone width there.
+
+    Roots of B_z(z) = +b_res and B_z(z) = -b_res on the cubic spline of the profile,
+    bracketed by the profile nodes and found with brentq. Zone half-width
+    b_res * relative_tolerance / |d|B|/dz| (infinite where the gradient vanishes).
+    """
+    spline = profile.spline()
+    slope = spline.derivative()
+    z = profile.z
+    found = []
+    for target in (b_res, -b_res):
+        f = profile.b_z - target
+        exact = np.nonzero(f == 0.0)[0]
+        brackets = np.nonzero(f[:-1] * f[1:] < 0)[0]
+        roots = [z[i] for i in exact] + [
+            brentq(lambda t: float(spline(t)) - target, z[i], z[i + 1], xtol=1e-12,
+                   rtol=4 * np.finfo(float).eps) for i in brackets]
+        found += [(root, np.sign(target) * float(slope(root))) for root in roots]
+    crossings = []
+    for root, grad in sorted(found):
+        half = b_res * relative_tolerance / abs(grad) if grad != 0 else np.inf
+        crossings.append(Crossing(float(root), float(b_res), float(grad), float(half),
+                                  float(2.0 * half)))
+    return tuple(crossings)
+
+
+# --------------------------------------------------------------------------- wall, volume
+
+
+def _azimuths(model, n: int) -> np.ndarray:
+    return np.array([0.0]) if model.axisymmetric else np.linspace(0, 2 * np.pi, n,
+                                                                   endpoint=False)
+
+
+def wall_field(model, chamber: Chamber, scale: float = 1.0,
+               grid: GeometryGrid | None = None) -> WallField:
+    """|B| on the wall r = R over a z x azimuth grid (one azimuth for axisymmetric models)."""
+    grid = grid or GeometryGrid()
+    z = np.linspace(chamber.z_start, chamber.z_end, grid.wall_z)
+    phi = _azimuths(model, grid.azimuths)
+    zz, pp = np.meshgrid(z, phi, indexing="ij")
+    b = _defined(model.magnitude(_cartesian(chamber.radius, pp, zz), scale), "wall")
+    return WallField(z, phi, b, float(scale))
+
+
+def rz_field(model, chamber: Chamber, scale: float = 1.0, phi: float = 0.0,
+             n_r: int = 41, n_z: int = 161) -> RZField:
+    """|B| over the r-z half plane at azimuth phi (for figures)."""
+    r = np.linspace(0.0, chamber.radius, n_r)
+    z = np.linspace(chamber.z_start, chamber.z_end, n_z)
+    rr, zz = np.meshgrid(r, z, indexing="ij")
+    b = model.magnitude(_cartesian(rr, phi, zz), scale)
+    return RZField(r, z, b, float(phi), float(scale))
+
+
+def _grid_best(model, s, r, phi, z, maximise=False):
+    """Best |B| per scale over a (r, phi, z) tensor grid: (S, 3) coordinates and values."""
+    rr, pp, zz = np.meshgrid(r, phi, z, indexing="ij")
+    b = _defined(model.magnitude(_cartesian(rr, pp, zz), s), "chamber").reshape(len(s), -1)
+    idx = np.argmax(b, axis=1) if maximise else np.argmin(b, axis=1)
+    coords = np.stack([rr.ravel(), pp.ravel(), zz.ravel()], axis=-1)
+    return coords[idx], b[np.arange(len(s)), idx]
+
+
+def _spacing(values: np.ndarray) -> float:
+    return float(values[1] - values[0]) if len(values) > 1 else 0.0
+
+
+def trap_geometries(model, chamber: Chamber, scales,
+                    grid: GeometryGrid | None = None) -> tuple[TrapGeometry, ...]:
+    """Trap geometry for each current scale; grids are evaluated once for all scales."""
+    grid = grid or GeometryGrid()
+    s = _scales(scales)
+    two_pi = 2 * np.pi
+    lower = np.array([0.0, -np.inf, chamber.z_start])
+    upper = np.array([chamber.radius, np.inf, chamber.z_end])
+    periodic = np.array([False, True, False])
+    levels = grid.zoom_levels
+
+    # volume minimum
+    r = np.linspace(0.0, chamber.radius, grid.volume_r)
+    phi = _azimuths(model, grid.volume_azimuths)
+    z = np.linspace(chamber.z_start, chamber.z_end, grid.volume_z)
+    start, _ = _grid_best(model, s, r, phi, z)
+    step = np.array([_spacing(r), _spacing(phi), _spacing(z)])
+    vmin, vmin_b = _zoom(model, s, start, step, lower, upper, periodic, levels)
+
+    # radial field: max over azimuth on the wall at z of B_min
+    phi_w = _azimuths(model, grid.azimuths)
+    b_w = model.field_per_scale(_cartesian(chamber.radius, phi_w[None, :], vmin[:, 2:3]), s)
+    b_w = _defined(np.linalg.norm(b_w, axis=-1), "wall")
+    start = np.stack([np.full(len(s), chamber.radius), phi_w[np.argmax(b_w, axis=1)],
+                      vmin[:, 2]], axis=-1)
+    rad, rad_b = _zoom(model, s, start, np.array([0.0, _spacing(phi_w), 0.0]), lower, upper,
+                       periodic, levels, maximise=True)
+
+    # last closed surface: smallest |B| on the wall and on both end planes
+    z_w = np.linspace(chamber.z_start, chamber.z_end, grid.wall_z)
+    r_e = np.linspace(0.0, chamber.radius, grid.end_r)
+    pieces = [("wall", [chamber.radius], z_w, np.array([0.0, _spacing(phi_w), _spacing(z_w)])),
+              ("injection end", r_e, [chamber.z_start],
+               np.array([_spacing(r_e), _spacing(phi_w), 0.0])),
+              ("extraction end", r_e, [chamber.z_end],
+               np.array([_spacing(r_e), _spacing(phi_w), 0.0]))]
+    closed = []
+    for where, rr, zz, step in pieces:
+        start, _ = _grid_best(model, s, np.asarray(rr), phi_w, np.asarray(zz))
+        closed.append((where,) + _zoom(model, s, start, step, lower, upper, periodic, levels))
+
+    results = []
+    for i, profile in enumerate(axis_profiles(model, chamber, s, grid)):
+        low, inj, ext = axial_extrema(profile)
+        where, x, b = min(((w, x[i], b[i]) for w, x, b in closed), key=lambda t: t[2])
+        results.append(TrapGeometry(
+            scale=float(s[i]), axis_min=low, injection_max=inj, extraction_max=ext,
+            volume_min=_point(vmin[i], vmin_b[i], "volume"),
+            radial_wall=FieldPoint(float(rad_b[i]), chamber.radius, float(rad[i, 1]) % two_pi,
+                                   float(rad[i, 2]), "wall"),
+            last_closed=_point(x, b, where),
+            mirror_ratio=min(inj.b, ext.b) / low.b if low.b > 0 else np.inf))
+    return tuple(results)
+
+
+def trap_geometry(model, chamber: Chamber, scale: float = 1.0,
+                  grid: GeometryGrid | None = None) -> TrapGeometry:
+    """Trap geometry (extrema, B_rad, last closed |B|, mirror ratio) at one current scale."""
+    return trap_geometries(model, chamber, [scale], grid)[0]
+
+
+def min_b_ratios(trap: TrapGeometry, b_ecr: float) -> MinBRatios:
+    """B_inj/B_ECR, B_ext/B_ECR, B_rad/B_ECR and B_min/B_ECR of a minimum-B trap.
+
+    The semi-empirical ranges these are compared with (B_inj ~ 3-4, B_rad >= 2, B_ext ~ 2,
+    B_min ~ 0.8 times B_ECR) are in reference-values.md sec. 7 (D. Hitz et al., Rev. Sci.
+    Instrum. 73 (2002) 509; V. Mironov et al., arXiv:2012.08776); the rules apply them.
+    """
+    return MinBRatios(trap.injection_max.b / b_ecr, trap.extraction_max.b / b_ecr,
+                      trap.radial_wall.b / b_ecr, trap.volume_min.b / b_ecr)
