@@ -1,0 +1,70 @@
+"""The PDF review report: readable text, every rule, cautions, attachments, reproducibility."""
+
+import io
+import json
+
+import pytest
+
+from conftest import DEMO
+from rfcheck.report.render import render_html, render_pdf
+from rfcheck.rules.policy import load_policy
+from rfcheck.run import run
+from rfcheck.spec import load_spec
+
+
+@pytest.fixture(scope="module")
+def demo_run():
+    return run(load_spec(DEMO), load_policy(None))
+
+
+@pytest.fixture(scope="module")
+def demo_pdf(demo_run):
+    return render_pdf(demo_run)
+
+
+def _pdf_text(data: bytes) -> str:
+    import pypdfium2 as pdfium
+
+    doc = pdfium.PdfDocument(data)
+    return "\n".join(doc[i].get_textpage().get_text_range() for i in range(len(doc)))
+
+
+def test_pdf_holds_verdict_rules_and_cautions(demo_run, demo_pdf):
+    assert demo_pdf.startswith(b"%PDF-")
+    text = _pdf_text(demo_pdf)
+    flat = " ".join(text.split())
+    assert demo_run.verdict.upper() in text
+    for rule in {f.rule for f in demo_run.findings}:
+        assert rule in flat, rule
+    for caution in ("RF exposure and burns", "High voltage", "X-rays from hot electrons",
+                    "Strong static magnetic fields", "Cryogens", "Toxic window materials",
+                    "Pressure and vacuum windows"):
+        assert caution in flat, caution
+    assert demo_run.spec_sha256 in flat
+    assert "Prepared by" in flat and "Approved by" in flat
+    # the report defers to local codes and never declares anything harmless
+    assert "qualified" in flat
+    assert " safe " not in f" {flat.lower()} ".replace("safety", "")
+
+
+def test_pdf_is_archival_with_attachments(demo_run, demo_pdf):
+    from pypdf import PdfReader
+
+    reader = PdfReader(io.BytesIO(demo_pdf))
+    names = set(reader.attachments)
+    assert {DEMO.name, "rfcheck-results.json"} <= names
+    attached = json.loads(reader.attachments["rfcheck-results.json"][0])
+    assert attached == demo_run.to_json()
+    assert reader.attachments[DEMO.name][0].decode() == DEMO.read_text(encoding="utf-8")
+    xmp = reader.xmp_metadata
+    assert xmp is not None and "pdfaid" in str(reader.trailer["/Root"]["/Metadata"].get_object().get_data())
+
+
+def test_pdf_is_reproducible(demo_run, demo_pdf):
+    assert render_pdf(demo_run) == demo_pdf
+
+
+def test_html_has_figures_as_inline_svg(demo_run):
+    html = render_html(demo_run)
+    assert html.count("<svg") >= 1
+    assert "On-axis field" in html
