@@ -49,13 +49,13 @@ class GeometryGrid:
     """Sampling of the chamber; searches refine from these grids by nested zooming."""
 
     axis_points: int = 1201
-    wall_z: int = 121
-    azimuths: int = 72  # over 2 pi, for models that depend on azimuth
+    wall_z: int = 81
+    azimuths: int = 36  # over 2 pi, for models that depend on azimuth
     volume_r: int = 9
-    volume_z: int = 61
-    volume_azimuths: int = 36
+    volume_z: int = 41
+    volume_azimuths: int = 12
     end_r: int = 13
-    zoom_levels: int = 14
+    zoom_levels: int = 12
 
 
 @dataclass(frozen=True)

@@ -1,0 +1,337 @@
+"""Magnet rules: the semi-empirical field ratios of minimum-B ion sources, and the
+high-field ("magnetic beach") launch of an R wave.
+
+`magnet.min-b-ratios` gives one finding per ratio and feed (four per feed), each with its own
+limit and source, rather than one finding naming the worst ratio: the ratios come from
+different publications of different confidence and a reviewer weighs them separately.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterator
+
+import numpy as np
+
+from rfcheck.findings import Finding, Quantity, Severity
+from rfcheck.physics.frequencies import ecr_field
+
+from .context import Context
+from .registry import Option, rule
+from .resonance import ECR_HARMONIC
+
+#: samples along the launch path (launcher to the far end of the chamber)
+PATH_POINTS = 1201
+
+#: (attribute of MinBRatios-like data, symbol, what it is)
+_RATIOS = (
+    ("injection", "B_inj/B_ECR", "the injection-side on-axis maximum"),
+    ("extraction", "B_ext/B_ECR", "the extraction-side on-axis maximum"),
+    ("radial", "B_rad/B_ECR", "the largest |B| on the wall at the axial position of B_min"),
+    ("minimum", "B_min/B_ECR", "the smallest |B| in the plasma volume"),
+)
+
+
+def _trap_fields(ctx: Context) -> dict[str, np.ndarray]:
+    """Characteristic fields (T) per envelope current scale, and where they lie."""
+    traps = ctx.trap_geometries()
+    return {
+        "injection": np.array([t.injection_max.b for t in traps]),
+        "extraction": np.array([t.extraction_max.b for t in traps]),
+        "radial": np.array([t.radial_wall.b for t in traps]),
+        "minimum": np.array([t.volume_min.b for t in traps]),
+        "_points": {"injection": [t.injection_max for t in traps],
+                    "extraction": [t.extraction_max for t in traps],
+                    "radial": [t.radial_wall for t in traps],
+                    "minimum": [t.volume_min for t in traps]},
+    }
+
+
+def _scale_index(ctx: Context, where: dict) -> int:
+    if "current_scale" not in where:
+        return 0
+    return int(np.argmin(np.abs(ctx.envelope.current_scale - where["current_scale"].value)))
+
+
+@rule("magnet.min-b-ratios", severity=Severity.WARNING,
+      summary="Injection, extraction, radial and minimum field of a minimum-B trap over B_ECR "
+              "lie in the published semi-empirical ranges.",
+      options={
+          "injection_min": Option("ratio", "lowest B_inj/B_ECR"),
+          "extraction_min": Option("ratio", "lowest B_ext/B_ECR"),
+          "radial_min": Option("ratio", "lowest B_rad/B_ECR (at the chamber wall)"),
+          "bmin_low": Option("ratio", "lowest B_min/B_ECR"),
+          "bmin_high": Option("ratio", "highest B_min/B_ECR"),
+      },
+      applies="minimum-B traps ([magnet] trap = \"minimum-b\"), feeds with absorption = ecr")
+def min_b_ratios(ctx: Context, *, injection_min: float, extraction_min: float,
+                 radial_min: float, bmin_low: float, bmin_high: float) -> Iterator[Finding]:
+    """What it checks
+    For a magnet declared as a minimum-B trap and each fundamental-ECR feed, four ratios
+    over B_ECR = 2π f m_e / e, each at the worst point of the envelope (current scale ×
+    frequency band), each a finding of its own:
+    B_inj/B_ECR ≥ injection_min (the injection-side on-axis maximum), B_ext/B_ECR ≥
+    extraction_min (extraction side), B_rad/B_ECR ≥ radial_min (largest |B| on the wall at
+    the axial position of B_min) and bmin_low ≤ B_min/B_ECR ≤ bmin_high (smallest |B| in
+    the plasma volume). Fields come from the trap geometry shared by the magnet rules
+    (rfcheck.magnet.geometry.trap_geometries).
+
+    Why it matters
+    These scaling laws summarise what the best-performing minimum-B ion sources share: a
+    strong injection mirror, an extraction mirror weaker than the radial wall field so that
+    ions leave towards the extraction, and a minimum field well below resonance. A design
+    outside them is not necessarily wrong but needs a reason. B_min too close to B_ECR has
+    been linked to kinetic (cyclotron) instabilities and bursts of hot-electron losses.
+
+    Equation
+    ratios B_x / B_ECR with B_ECR = 2π f m_e / e (0.5180 T at 14.5 GHz).
+
+    Options
+    injection_min (default 3): "standard model" B_inj ≈ 3–4 B_ECR, D. Hitz et al., Rev.
+    Sci. Instrum. 73 (2002) 509 (medium confidence). extraction_min (default 1.8): B_ext ≈ 2
+    B_ECR, ≈ 0.9 B_rad, same source (medium/low). radial_min (default 2): B_rad ≥ 2 B_ECR,
+    same source (medium). bmin_low, bmin_high (defaults 0.4, 0.8): useful range of B_min;
+    numerical optimum ≈ 0.8 "close to experimental observations", V. Mironov et al.,
+    arXiv:2012.08776 (2020) (high); instabilities above ≈ 0.8, O. Tarvainen et al., Plasma
+    Sources Sci. Technol. 23 (2014) 025020 (from memory, low).
+
+    References
+    D. Hitz et al., Rev. Sci. Instrum. 73 (2002) 509; S. Gammino and G. Ciavola, Plasma
+    Sources Sci. Technol. 5 (1996) 19; V. Mironov et al., arXiv:2012.08776 (2020);
+    O. Tarvainen et al., Plasma Sources Sci. Technol. 23 (2014) 025020.
+    """
+    trap_type = ctx.model.magnet.trap
+    limits = {"injection": (injection_min, None), "extraction": (extraction_min, None),
+              "radial": (radial_min, None), "minimum": (bmin_low, bmin_high)}
+    fields = None
+    overall = (f"B_inj/B_ECR ≥ {injection_min:.3g}, B_ext/B_ECR ≥ {extraction_min:.3g}, "
+               f"B_rad/B_ECR ≥ {radial_min:.3g}, "
+               f"{bmin_low:.3g} ≤ B_min/B_ECR ≤ {bmin_high:.3g}")
+    for feed in ctx.model.feeds:
+        if trap_type != "minimum-b":
+            yield ctx.not_applicable(f"feed {feed.id}", overall,
+                                     f"the magnet is declared trap = '{trap_type}'; the ratios "
+                                     "are stated for minimum-B ion sources")
+            continue
+        if feed.absorption != "ecr":
+            yield ctx.not_applicable(f"feed {feed.id}", overall,
+                                     f"absorption '{feed.absorption}': the ratios are stated "
+                                     "for fundamental ECR heating")
+            continue
+        for key, symbol, what in _RATIOS:
+            lo, hi = limits[key]
+            subject = f"feed {feed.id} {symbol}"
+            requirement = (f"{symbol} ≥ {lo:.3g}" if hi is None
+                           else f"{lo:.3g} ≤ {symbol} ≤ {hi:.3g}")
+            if fields is None:
+                fields = _trap_fields(ctx)
+            grid = ctx.envelope.grid(feed)
+            ratio = fields[key][None, :, None] / ecr_field(grid.frequency)
+            if hi is None:
+                slack = ratio - lo
+            else:
+                slack = np.minimum(ratio - lo, hi - ratio)
+            worst_slack, where = grid.worst(slack, "min")
+            i = _scale_index(ctx, where)
+            f_w = where["frequency"].value if "frequency" in where else feed.frequency
+            b_ecr = float(ecr_field(f_w))
+            point = fields["_points"][key][i]
+            value = point.b / b_ecr
+            limit = lo if hi is None or value - lo <= hi - value else hi
+            passed = worst_slack >= 0
+            where[key + "_field"] = Quantity(point.b, "T")
+            where["position"] = Quantity(point.z, "m")
+            at = f"z = {point.z * 1e3:.1f} mm" + (f", r = {point.r * 1e3:.1f} mm"
+                                                   if key == "minimum" and point.r > 0 else "")
+            head = (f"{symbol} = {value:.3g} ({what}: {point.b:.4g} T at {at}; B_ECR "
+                    f"{b_ecr:.4g} T)")
+            if passed:
+                msg = f"{head}, within {requirement.replace(symbol, 'the ratio')}"
+            elif value < lo:
+                msg = f"{head}, below the semi-empirical minimum {lo:.3g}"
+            else:
+                msg = f"{head}, above the semi-empirical maximum {hi:.3g}"
+            yield ctx.finding(subject, requirement, passed=passed, message=msg,
+                              measured=Quantity(value, "1"), limit=Quantity(limit, "1"),
+                              margin=Quantity(worst_slack, "1"), worst_case=where)
+
+
+# --------------------------------------------------------------------------- beach
+
+
+def _launch_path(ctx: Context, feed) -> np.ndarray | None:
+    """Axial positions from the launcher to the far end of the chamber, or None if the
+    launcher lies at or beyond that end."""
+    c = ctx.model.chamber
+    z0, d = feed.launch.z, feed.launch.direction
+    far = c.z_end if d > 0 else c.z_start
+    if (far - z0) * d <= 0:
+        return None
+    return np.linspace(z0, far, PATH_POINTS)
+
+
+def _path_field(ctx: Context, z: np.ndarray) -> np.ndarray:
+    """|B| (T) on the axis at z for every envelope current scale, (n_scale, n_z)."""
+    points = np.zeros(z.shape + (3,))
+    points[:, 2] = z
+    b = np.atleast_2d(ctx.field_model.magnitude(points, ctx.envelope.current_scale))
+    if np.isnan(b).any():
+        bad = z[np.isnan(b).any(axis=0)]
+        raise ValueError(f"the field is undefined on the launch path from z = {bad[0] * 1e3:.1f} "
+                         "mm: measured field data do not cover it")
+    return b
+
+
+def _descent(b: np.ndarray, b_ecr: float) -> tuple[int | None, float]:
+    """(index of the first point with |B| ≤ B_ECR, largest dip before it, T).
+
+    A dip is a fall of |B| followed by a rise before the resonance: at each point, the
+    smaller of the highest field before it and the highest field after it (up to the
+    crossing) minus the field there.
+    """
+    below = np.nonzero(b <= b_ecr)[0]
+    k = int(below[0]) if below.size else None
+    seg = b[:k] if k is not None else b
+    if seg.size < 3:
+        return k, 0.0
+    left = np.maximum.accumulate(seg)
+    right = np.maximum.accumulate(seg[::-1])[::-1]
+    return k, float(np.max(np.minimum(left, right) - seg))
+
+
+@rule("magnet.high-field-launch", severity=Severity.ERROR,
+      summary="An R wave launched along B starts above B_ECR by a margin and meets the "
+              "resonance on a falling field (magnetic beach).",
+      options={
+          "min_launch_margin": Option("ratio", "lowest (B_launch − B_ECR) / B_ECR"),
+          "max_field_dip": Option("ratio", "largest dip of |B| (a fall and rise again) between "
+                                           "the launcher and the resonance, relative to B_ECR"),
+      },
+      applies="feeds launched with mode = \"R\" and absorption = ecr or ecr-harmonic-2")
+def high_field_launch(ctx: Context, *, min_launch_margin: float,
+                      max_field_dip: float) -> Iterator[Finding]:
+    """What it checks
+    For each feed launched as an R wave (mode "R"), at every current scale of the envelope
+    and every frequency of its band, two findings:
+    (1) launch field: the on-axis |B| at the launcher exceeds B_ECR = 2π f m_e / e by at
+    least min_launch_margin; (2) path: following the axis from the launcher in the launch
+    direction, |B| reaches B_ECR inside the chamber, and on the way there it never falls and
+    rises again by more than max_field_dip × B_ECR. A rise right after the launcher (the
+    launcher sits a little outside the peak of its coil) is allowed: for |B| > B_ECR the R
+    wave has no cutoff; what spoils the beach is a local minimum of |B| on the way
+    (resonance-like absorption at a weak gradient, or the wave meeting the resonance
+    again), a launch field below B_ECR, or no resonance at all. The fundamental B_ECR is
+    used also for ecr-harmonic-2 feeds: the R-wave cutoff and resonance structure is set by
+    f_ce / f. The launch angle to the field is not judged here (the access.* rules follow
+    the wave along its path).
+
+    Why it matters
+    Above the critical density the R wave is the only wave that reaches the resonance, and
+    only from the high-field side (f_ce > f): launched below B_ECR it meets the R cutoff at
+    n = n_c (1 − f_ce/f) and is reflected. Coming down a monotonic field to the resonance
+    ("magnetic beach") it is absorbed almost completely in one pass. A launch field only
+    just above B_ECR turns into a low-field launch with a small current drift.
+
+    Equation
+    R = 1 − X / (1 − Y), X = n/n_c, Y = f_ce/f: no cutoff for Y > 1; launch margin
+    |B(z_launch)| / B_ECR − 1.
+
+    Options
+    min_launch_margin: default 5 % (common practice). max_field_dip: default 1 % of B_ECR
+    (of the order of magnetic-mapping accuracy; from memory).
+
+    References
+    T. H. Stix, Waves in Plasmas (AIP 1992), ch. 1–2; R. Geller, Electron Cyclotron
+    Resonance Ion Sources and ECR Plasmas (IOP 1996), ch. 2 (magnetic beach).
+    """
+    for feed in ctx.model.feeds:
+        subject = f"feed {feed.id}"
+        req_launch = f"|B| at the launcher ≥ (1 + {min_launch_margin:.0%}) B_ECR"
+        req_path = (f"|B| falls to B_ECR along the launch direction with no dip above "
+                    f"{max_field_dip:.1%} of B_ECR")
+        reason = None
+        if feed.launch.mode != "R":
+            reason = f"the feed is launched as mode {feed.launch.mode}, not as an R wave"
+        elif feed.absorption not in ECR_HARMONIC:
+            reason = f"absorption '{feed.absorption}' relies on no electron-cyclotron resonance"
+        if reason:
+            yield ctx.not_applicable(subject, f"{req_launch}; {req_path}", reason)
+            continue
+        z = _launch_path(ctx, feed)
+        if z is None:
+            msg = (f"the launcher at z = {feed.launch.z * 1e3:.1f} mm lies at or beyond the "
+                   "chamber end it points to: the wave does not cross the chamber")
+            yield ctx.finding(f"{subject} launch field", req_launch, passed=False, message=msg)
+            yield ctx.finding(f"{subject} launch path", req_path, passed=False, message=msg)
+            continue
+        b = _path_field(ctx, z)  # (ns, nz)
+        grid = ctx.envelope.grid(feed)
+        freqs = grid.frequency.reshape(-1)
+        b_ecr = ecr_field(freqs)
+        excess = (b[:, 0][:, None] / b_ecr[None, :] - 1.0)[None]  # (1, ns, nf)
+        dip = np.zeros_like(excess)
+        crossing = np.full(excess.shape, np.nan)
+        for i in range(b.shape[0]):
+            for j, be in enumerate(b_ecr):
+                k, d = _descent(b[i], float(be))
+                dip[0, i, j] = d / be
+                if k is not None and k > 0:
+                    crossing[0, i, j] = z[k]
+        # (1) the launch field
+        worst, where = grid.worst(excess, "min")
+        i = _scale_index(ctx, where)
+        f_w = where["frequency"].value if "frequency" in where else feed.frequency
+        be_w = float(ecr_field(f_w))
+        b0 = float(b[i, 0])
+        margin = worst - min_launch_margin
+        passed = margin >= 0
+        if passed:
+            msg = (f"|B| {b0:.4g} T at the launcher (z = {feed.launch.z * 1e3:.1f} mm) is "
+                   f"{worst:.1%} above B_ECR {be_w:.4g} T")
+        elif worst > 0:
+            msg = (f"|B| {b0:.4g} T at the launcher is only {worst:.1%} above B_ECR "
+                   f"{be_w:.4g} T (required {min_launch_margin:.0%}): a small drift makes it a "
+                   "low-field launch")
+        else:
+            msg = (f"|B| {b0:.4g} T at the launcher (z = {feed.launch.z * 1e3:.1f} mm) is below "
+                   f"B_ECR {be_w:.4g} T: a low-field launch; above n_c (1 − f_ce/f) the R wave "
+                   "is cut off before the resonance")
+        where["launch_field"] = Quantity(b0, "T")
+        yield ctx.finding(f"{subject} launch field", req_launch, passed=passed, message=msg,
+                          measured=Quantity(worst, "1"), limit=Quantity(min_launch_margin, "1"),
+                          margin=Quantity(margin, "1"), worst_case=where)
+        # (2) the path to the resonance
+        low_launch = excess[0] <= 0
+        missing = np.isnan(crossing[0]) & ~low_launch
+        bad_dip = np.where(np.isnan(crossing[0]), -np.inf, dip[0])
+        worst_dip, where = grid.worst(bad_dip[None], "max")
+        if low_launch.any():
+            msg = ("the field at the launcher is below B_ECR at some envelope points: there is "
+                   "no high-field side to descend from")
+            yield ctx.finding(f"{subject} launch path", req_path, passed=False, message=msg,
+                              measured=None, limit=Quantity(max_field_dip, "1"))
+            continue
+        if missing.any():
+            msg = (f"|B| stays above B_ECR from the launcher to the chamber end "
+                   f"(z = {z[-1] * 1e3:.1f} mm) at {int(missing.sum())} envelope points: "
+                   "the R wave meets no resonance on the axis")
+            yield ctx.finding(f"{subject} launch path", req_path, passed=False, message=msg,
+                              measured=None, limit=Quantity(max_field_dip, "1"))
+            continue
+        i = _scale_index(ctx, where)
+        j = int(np.argmax(bad_dip[i]))
+        z_res = float(crossing[0, i, j])
+        where["resonance_position"] = Quantity(z_res, "m")
+        margin = max_field_dip - worst_dip
+        passed = margin >= 0
+        travel = abs(z_res - feed.launch.z) * 1e3
+        if worst_dip <= 0:
+            shape = "falls without a dip"
+        else:
+            shape = f"dips by at most {worst_dip:.2%} of B_ECR"
+        msg = (f"|B| {shape} over the {travel:.1f} mm from the launcher to the first resonance "
+               f"crossing at z = {z_res * 1e3:.1f} mm" +
+               ("" if passed else f", more than the allowed {max_field_dip:.1%}: the wave "
+                                  "meets a field well before the resonance"))
+        yield ctx.finding(f"{subject} launch path", req_path, passed=passed, message=msg,
+                          measured=Quantity(worst_dip, "1"), limit=Quantity(max_field_dip, "1"),
+                          margin=Quantity(margin, "1"), worst_case=where)
