@@ -41,6 +41,11 @@ def characteristics(ctx: Context) -> dict:
     except Exception as exc:  # a broken field model is reported by the rules; keep the run
         b_nom = None
         out["magnet"] = {"error": f"{type(exc).__name__}: {exc}"}
+    if b_nom is not None:
+        from rfcheck.rules.magnet_data import magnet_characteristics
+
+        for key, value in magnet_characteristics(ctx).items():
+            out["magnet"].setdefault(key, value)
     from rfcheck.rules.resonance import ECR_HARMONIC
 
     for feed in model.feeds:
@@ -69,4 +74,7 @@ def characteristics(ctx: Context) -> dict:
     from rfcheck.rules.window_data import window_characteristics
 
     out["windows"] = window_characteristics(ctx)
+    from rfcheck.rules.path_data import path_characteristics
+
+    out["paths"] = path_characteristics(ctx)
     return out

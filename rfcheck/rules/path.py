@@ -1,0 +1,345 @@
+"""The launch path of each feed, shared by the access.*, load.* and absorption.* rules, the
+characteristics and the report figures; built once per feed and cached on the Context.
+
+Geometry: the path runs on the chamber axis from the launcher (its position clipped into the
+chamber: the plasma starts at the chamber wall) in the launch direction to the far end of the
+chamber. Positions along it are the distance s from the launcher (m); chamber coordinates are
+z = z_launch + direction · s.
+
+Along the path:
+
+* |B|(s) on the axis for every current scale of the envelope, interpolated from the
+  Context's cached on-axis field (:meth:`rfcheck.rules.context.Context.axis_field`);
+* n_e(s) = n_peak · shape(z), the density profile of the spec normalised to a peak of 1
+  (flat; parabolic (1 − (2u − 1)²)^exponent, u = (z − z_start)/L; a linear ramp from 0 at
+  each end wall to 1 over ``edge_length``; a table normalised to its maximum);
+* the electron collision frequency ν = ν_en + ν_ei: electron–neutral from the neutral gas
+  (:func:`rfcheck.physics.collisions.electron_neutral_collision_frequency`, cross section
+  at E = T_e) and electron–ion (Braginskii, Z_eff = Σ fraction · Z).
+
+The launched wave is the spec's mode at its angle to B: the R and L waves along B at 0°,
+the O and X modes across B at 90° (the closed forms n² = R, L, P, RL/S), any other angle
+the named branch of the cold dispersion relation at that angle, held fixed along the path.
+
+Envelope: the accessibility and full-wave solutions are one-dimensional problems for one
+profile, so they are evaluated at the envelope corners, not over the whole grid: density
+min/max × current scale min/1/max × frequency min/max (12 profiles at most per feed). At
+each corner the full-wave n² takes the electron temperature (min or max) that gives the
+smaller collision frequency at the peak density: the least collisional damping, which in
+general reflects the most. Rules that need no profile solution (optical depth, ν/ω) are
+vectorised over the whole envelope grid instead.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import NamedTuple
+
+import numpy as np
+
+from rfcheck.findings import Quantity
+from rfcheck.model import Chamber, DensityProfile, Feed, Plasma
+from rfcheck.physics.access import PathAccess, launch_path_access, mode_n2
+from rfcheck.physics.collisions import (electron_ion_collision_frequency,
+                                        electron_neutral_collision_frequency, known_gases)
+from rfcheck.physics.constants import TWO_PI
+from rfcheck.physics.frequencies import ecr_field
+from rfcheck.physics.fullwave import SlabResponse, slab_reflection
+from rfcheck.physics.species import ELECTRON, ion_mixture
+
+__all__ = ["PATH_POINTS", "NU_FLOOR", "NEAR_FIELD", "Corner", "Reach", "LaunchPath",
+           "launch_path", "profile_shape", "collision_frequency", "launched_wave"]
+
+#: samples along the path (the profile's corners are added to them)
+PATH_POINTS = 601
+#: floor of ν/ω in the full-wave n²: regularises the cold resonances where the plasma gives
+#: no collisions (the result is then the collisionless limit, which does not depend on ν)
+NU_FLOOR = 1e-6
+#: couplings through the near field of an antenna, not by a launched plane wave
+NEAR_FIELD = ("inductive", "helicon")
+_ANGLE_TOL = 1e-9
+#: name of the second-harmonic target layer
+HARMONIC_2 = "2nd-harmonic ECR"
+
+
+def launched_wave(feed: Feed) -> tuple[str, float | None]:
+    """(mode, θ) for :func:`rfcheck.physics.access.mode_n2`: θ None for R, L at 0° and
+    O, X at 90° (the exact closed forms), the declared angle to B otherwise."""
+    mode, angle = feed.launch.mode.upper(), float(feed.launch.angle_to_field)
+    pure = 0.0 if mode in ("R", "L") else math.pi / 2
+    return mode, (None if abs(angle - pure) < _ANGLE_TOL else angle)
+
+
+def wave_label(feed: Feed) -> str:
+    mode, theta = launched_wave(feed)
+    if theta is None:
+        return f"{mode} wave along B" if mode in ("R", "L") else f"{mode} mode across B"
+    return f"{mode} branch at {math.degrees(theta):.3g}° to B"
+
+
+def profile_shape(profile: DensityProfile, chamber: Chamber, z) -> np.ndarray:
+    """The density profile normalised to a peak of 1 at chamber positions z (0 outside)."""
+    z = np.asarray(z, dtype=float)
+    inside = (z >= chamber.z_start) & (z <= chamber.z_end)
+    if profile.kind == "parabolic":
+        u = (z - chamber.z_start) / chamber.length
+        out = np.clip(1.0 - (2.0 * u - 1.0) ** 2, 0.0, None) ** profile.exponent
+    elif profile.kind == "ramp" and profile.edge_length > 0:
+        edge = np.minimum(z - chamber.z_start, chamber.z_end - z) / profile.edge_length
+        out = np.clip(edge, 0.0, 1.0)
+    elif profile.kind == "table" and len(profile.z) > 0:
+        shape = np.asarray(profile.shape, dtype=float)
+        top = float(shape.max()) if shape.size and shape.max() > 0 else 1.0
+        out = np.interp(z, np.asarray(profile.z, dtype=float), shape / top)
+    else:  # flat, or a ramp of zero length
+        out = np.ones(z.shape)
+    return np.where(inside, out, 0.0)
+
+
+def _profile_knots(profile: DensityProfile, chamber: Chamber) -> list[float]:
+    """Chamber positions where the profile has a corner (sampled exactly)."""
+    if profile.kind == "ramp" and profile.edge_length > 0:
+        return [chamber.z_start + profile.edge_length, chamber.z_end - profile.edge_length]
+    if profile.kind == "table":
+        return list(profile.z)
+    return []
+
+
+def collision_frequency(plasma: Plasma, n_e, t_e) -> np.ndarray:
+    """ν = ν_en + ν_ei (s^-1) at electron densities n_e (m^-3) and temperature t_e (eV).
+
+    ν_en from the neutral gas when the spec gives one and its cross section is tabulated
+    (else 0); ν_ei with Z_eff = Σ fraction_s Z_s (zero where n_e = 0).
+    """
+    n_e = np.asarray(n_e, dtype=float)
+    t_e = np.asarray(t_e, dtype=float)
+    z_eff = sum(frac * sp.charge_number for sp, frac in ion_mixture(plasma.ions)) or 1.0
+    with np.errstate(divide="ignore", invalid="ignore"):
+        nu = np.where(n_e > 0, electron_ion_collision_frequency(np.maximum(n_e, 1.0), t_e, z_eff),
+                      0.0)
+    gas = plasma.neutral
+    if gas is not None and gas.species in known_gases():
+        nu = nu + electron_neutral_collision_frequency(gas.species, gas.pressure, t_e,
+                                                       gas.temperature)
+    return nu
+
+
+@dataclass(frozen=True)
+class Corner:
+    """One envelope corner: peak density (m^-3), current scale, frequency (Hz), the electron
+    temperature (eV) used for collisions, and the indices (density, scale, frequency)."""
+
+    density: float
+    scale: float
+    frequency: float
+    electron_temperature: float
+    index: tuple[int, int, int]
+
+
+class Reach(NamedTuple):
+    """Whether the launched wave reaches its target layer at one corner.
+
+    verdict: "direct", "tunnelling" or "no-resonance"; factor: exp(−2∫κ dz) before the
+    target (0 for no-resonance); target_s, cutoff_s, width: distances from the launcher (m;
+    nan where none); cutoff: name of the first cutoff met ("" if none)."""
+
+    verdict: str
+    target: str
+    target_s: float
+    factor: float
+    cutoff: str
+    cutoff_s: float
+    width: float
+
+
+class LaunchPath:
+    """The launch path of one feed with its per-corner solutions (computed on demand, cached)."""
+
+    def __init__(self, ctx, feed: Feed):
+        model, env = ctx.model, ctx.envelope
+        chamber, plasma = model.chamber, model.plasma
+        self.feed, self.plasma, self.chamber = feed, plasma, chamber
+        self.direction = 1 if feed.launch.direction >= 0 else -1
+        self.z0 = min(max(feed.launch.z, chamber.z_start), chamber.z_end)
+        far = chamber.z_end if self.direction > 0 else chamber.z_start
+        self.length = abs(far - self.z0)
+        self.mode, self.theta = launched_wave(feed)
+        self.label = wave_label(feed)
+        self.densities = np.asarray(env.density, dtype=float)
+        self.scales = np.asarray(env.current_scale, dtype=float)
+        self.frequencies = np.asarray(env.frequencies(feed), dtype=float)
+        self.temperatures = np.asarray(env.electron_temperature, dtype=float)
+        self.problem = ""
+        if self.length <= 1e-9 * max(chamber.length, 1e-3):
+            self.problem = (f"the launcher at z = {feed.launch.z * 1e3:.4g} mm points out of the "
+                            f"chamber ({chamber.z_start * 1e3:.4g}–{chamber.z_end * 1e3:.4g} mm)")
+            self.s = self.z = self.shape = np.zeros(0)
+            self.b = np.zeros((self.scales.size, 0))
+        else:
+            knots = [abs(k - self.z0) for k in _profile_knots(plasma.profile, chamber)]
+            s = np.linspace(0.0, self.length, PATH_POINTS)
+            s = np.unique(np.concatenate([s, [k for k in knots if 0 < k < self.length]]))
+            self.s = s
+            self.z = self.z0 + self.direction * s
+            self.shape = profile_shape(plasma.profile, chamber, self.z)
+            b_axis = ctx.axis_field()  # (n_scale, n_axis), |B|
+            self.b = np.stack([np.interp(self.z, ctx.axis_z, row) for row in b_axis])
+            if not np.all(np.isfinite(self.b)):
+                raise ValueError("the magnet field is undefined on the launch path")
+        self._access: dict = {}
+        self._reach: dict = {}
+        self._wave: dict = {}
+
+    # ---- positions
+
+    @property
+    def start_text(self) -> str:
+        """Where the path starts, in words (the chamber wall when the launcher lies outside)."""
+        z_l = self.feed.launch.z
+        if abs(z_l - self.z0) > 1e-12:
+            return (f"the chamber wall at z = {self.z0 * 1e3:.4g} mm (launcher at "
+                    f"z = {z_l * 1e3:.4g} mm)")
+        return f"the launcher at z = {self.z0 * 1e3:.4g} mm"
+
+    def z_at(self, s: float) -> float:
+        """Chamber position (m) of a distance s from the launcher."""
+        return self.z0 + self.direction * s
+
+    # ---- corners
+
+    def corners(self) -> list[Corner]:
+        """Density min/max × current scale min/1/max × frequency min/max."""
+        di = sorted({0, self.densities.size - 1})
+        si = sorted({0, int(np.argmin(np.abs(self.scales - 1.0))), self.scales.size - 1})
+        fi = sorted({0, self.frequencies.size - 1})
+        out = []
+        for i in di:
+            n = float(self.densities[i])
+            nus = collision_frequency(self.plasma, n, self.temperatures)
+            t_e = float(self.temperatures[int(np.argmin(nus))])
+            for j in si:
+                for k in fi:
+                    out.append(Corner(n, float(self.scales[j]), float(self.frequencies[k]),
+                                      t_e, (i, j, k)))
+        return out
+
+    def worst_case(self, corner: Corner, temperature: bool = False) -> dict[str, Quantity]:
+        """The corner's envelope point, naming only the axes that vary."""
+        out: dict[str, Quantity] = {}
+        if self.densities.size > 1:
+            out["density"] = Quantity(corner.density, "m^-3")
+        if self.scales.size > 1:
+            out["current_scale"] = Quantity(corner.scale, "1")
+        if self.frequencies.size > 1:
+            out["frequency"] = Quantity(corner.frequency, "Hz")
+        if temperature and self.temperatures.size > 1:
+            out["electron_temperature"] = Quantity(corner.electron_temperature, "eV")
+        return out
+
+    # ---- profiles at a corner
+
+    def n_e(self, corner: Corner) -> np.ndarray:
+        return corner.density * self.shape
+
+    def b_of(self, corner: Corner) -> np.ndarray:
+        return self.b[corner.index[1]]
+
+    def nu(self, corner: Corner, n_e) -> np.ndarray:
+        """Collision frequency with the NU_FLOOR of the full-wave n² (s^-1)."""
+        floor = NU_FLOOR * TWO_PI * corner.frequency
+        return np.maximum(collision_frequency(self.plasma, n_e, corner.electron_temperature),
+                          floor)
+
+    def n2(self, corner: Corner, s=None, collisions: bool = True) -> np.ndarray:
+        """n² of the launched wave at distances s (default: the path samples)."""
+        b, shape = self.b_of(corner), self.shape
+        if s is None:
+            s, bq, ne = self.s, b, corner.density * shape
+        else:
+            s = np.asarray(s, dtype=float)
+            bq = np.interp(s, self.s, b)
+            ne = corner.density * profile_shape(self.plasma.profile, self.chamber, self.z_at(s))
+        nu = {ELECTRON.name: self.nu(corner, ne)} if collisions else 0.0
+        return mode_n2(corner.frequency, bq, ne, self.mode, self.theta, self.plasma.ions, nu)
+
+    # ---- solutions (cached per corner)
+
+    def access(self, corner: Corner) -> PathAccess:
+        """Collisionless accessibility of the mode's own target layer (physics.access)."""
+        key = corner.index
+        if key not in self._access:
+            self._access[key] = launch_path_access(
+                self.s, self.b_of(corner), self.n_e(corner), corner.frequency, self.mode,
+                self.theta, ions=self.plasma.ions, blocked_below=0.0)
+        return self._access[key]
+
+    def reach(self, corner: Corner, harmonic: int = 1) -> Reach:
+        """Accessibility of the target: the mode's layer (harmonic 1), or the first crossing of
+        the second-harmonic field B_ECR/2 when no fundamental layer comes before it."""
+        key = (corner.index, harmonic)
+        if key in self._reach:
+            return self._reach[key]
+        acc = self.access(corner)
+        out = _reach_of(acc)
+        if harmonic == 2:
+            b = self.b_of(corner)
+            g = b - float(ecr_field(corner.frequency, harmonic=2))
+            hits = np.nonzero(np.sign(g[:-1]) * np.sign(g[1:]) <= 0)[0]
+            s_h = math.nan
+            if hits.size:
+                i = int(hits[0])
+                g0, g1 = float(g[i]), float(g[i + 1])
+                frac = g0 / (g0 - g1) if g0 != g1 else 0.0
+                s_h = float(self.s[i] + (self.s[i + 1] - self.s[i]) * frac)
+            first = float(acc.resonance_z[0]) if acc.resonance_z.size else math.inf
+            if math.isnan(s_h):
+                out = Reach("no-resonance", HARMONIC_2, math.nan, 0.0, "", math.nan,
+                            math.nan)
+            elif s_h < first:
+                out = self._reach_truncated(corner, s_h)
+        self._reach[key] = out
+        return out
+
+    def _reach_truncated(self, corner: Corner, s_end: float) -> Reach:
+        keep = self.s < s_end
+        s = np.append(self.s[keep], s_end)
+        if s.size < 2 or s_end <= 0:
+            return Reach("direct", HARMONIC_2, s_end, 1.0, "", math.nan, math.nan)
+        b = np.interp(s, self.s, self.b_of(corner))
+        n = np.interp(s, self.s, self.n_e(corner))
+        acc = launch_path_access(s, b, n, corner.frequency, self.mode, self.theta,
+                                 ions=self.plasma.ions, blocked_below=0.0)
+        r = _reach_of(acc)
+        verdict = "direct" if r.cutoff == "" else "tunnelling"
+        return Reach(verdict, HARMONIC_2, s_end, r.factor if r.cutoff else 1.0, r.cutoff,
+                     r.cutoff_s, r.width)
+
+    def wave(self, corner: Corner) -> SlabResponse:
+        """1-D full-wave reflection, transmission and absorption of the collisional n²(s),
+        incident from vacuum at the launcher, leaving into the profile's far-end value."""
+        key = corner.index
+        if key not in self._wave:
+            self._wave[key] = slab_reflection(self.s, lambda sq: self.n2(corner, sq),
+                                              corner.frequency)
+        return self._wave[key]
+
+
+def _reach_of(acc: PathAccess) -> Reach:
+    layers = acc.layers
+    width = float(layers.width.sum()) if layers.width.size else math.nan
+    target_s = float(acc.resonance_z[0]) if acc.resonance_z.size else math.nan
+    if acc.verdict == "no-resonance":
+        return Reach("no-resonance", acc.target, math.nan, 0.0, acc.first_cutoff,
+                     acc.first_cutoff_z, width)
+    verdict = "direct" if acc.verdict == "direct" else "tunnelling"
+    return Reach(verdict, acc.target, target_s, acc.tunnelling_factor, acc.first_cutoff,
+                 acc.first_cutoff_z, width)
+
+
+def launch_path(ctx, feed: Feed) -> LaunchPath:
+    """The feed's launch path (cached on the Context)."""
+    key = ("launch-path", feed.id)
+    if key not in ctx._cache:
+        ctx._cache[key] = LaunchPath(ctx, feed)
+    return ctx._cache[key]
