@@ -48,14 +48,14 @@ class FieldUndefinedError(ValueError):
 class GeometryGrid:
     """Sampling of the chamber; searches refine from these grids by nested zooming."""
 
-    axis_points: int = 1201
+    axis_points: int = 801
     wall_z: int = 81
     azimuths: int = 36  # over 2 pi, for models that depend on azimuth
     volume_r: int = 9
     volume_z: int = 41
     volume_azimuths: int = 12
     end_r: int = 13
-    zoom_levels: int = 12
+    zoom_levels: int = 8
 
 
 @dataclass(frozen=True)

@@ -72,11 +72,14 @@ def _cyl_to_cart(points: np.ndarray, br: np.ndarray, bz: np.ndarray) -> np.ndarr
     return np.stack([f * x, f * y, bz], axis=-1)
 
 
-def _cylinder_kernel(r: np.ndarray, dz: np.ndarray, radius: float, half_length: float):
-    """(B_r, B_z) of an axially magnetised cylinder, unit polarisation (magpylib core)."""
+def _cylinder_kernel(r: np.ndarray, dz: np.ndarray, radius, half_length: float):
+    """(B_r, B_z) of an axially magnetised cylinder, unit polarisation (magpylib core).
+
+    `radius` may be a scalar or an array shaped like `r` (several cylinders in one call).
+    """
     from magpylib.core import magnet_cylinder_axial_Bfield
 
-    b = magnet_cylinder_axial_Bfield(np.full(r.shape, half_length / radius), r / radius,
+    b = magnet_cylinder_axial_Bfield(half_length / np.broadcast_to(radius, r.shape), r / radius,
                                      dz / radius)
     return b[0], b[2]
 
@@ -114,18 +117,23 @@ class _CoilSource(_Source):
     def field(self, points):
         r = np.hypot(points[:, 0], points[:, 1])
         dz = points[:, 2] - self.coil.z
-        br = np.zeros(len(points))
-        bz = np.zeros(len(points))
-        for radius, weight in zip(self.radii, self.weights):
-            if self.coil.length > 0:
-                kr, kz = _cylinder_kernel(r, dz, radius, 0.5 * self.coil.length)
-            else:
-                from magpylib.core import current_circle_Hfield
+        # all sheets in one kernel call: shape (sheets, n) flattened
+        radii = self.radii[:, None]
+        rr = np.broadcast_to(r, (len(self.radii), len(r)))
+        zz = np.broadcast_to(dz, rr.shape)
+        if self.coil.length > 0:
+            kr, kz = _cylinder_kernel(rr.ravel(), zz.ravel(),
+                                      np.broadcast_to(radii, rr.shape).ravel(),
+                                      0.5 * self.coil.length)
+        else:
+            from magpylib.core import current_circle_Hfield
 
-                h = current_circle_Hfield(np.full(r.shape, radius), r, dz, np.ones(r.shape))
-                kr, kz = h[0], h[2]
-            br += weight * kr
-            bz += weight * kz
+            h = current_circle_Hfield(np.broadcast_to(radii, rr.shape).ravel(), rr.ravel(),
+                                      zz.ravel(), np.ones(rr.size))
+            kr, kz = h[0], h[2]
+        w = self.weights[:, None]
+        br = (w * kr.reshape(rr.shape)).sum(axis=0)
+        bz = (w * kz.reshape(rr.shape)).sum(axis=0)
         return _cyl_to_cart(points, br, bz)
 
 

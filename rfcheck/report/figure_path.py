@@ -67,7 +67,7 @@ def launch_path_figure(run) -> dict | None:
             "svg": _svg(fig, "path"),
             "caption": "Real part of n² of each feed's launched wave (collisional, cold plasma) "
                        "along its path on the axis, at the envelope corners (density min/max, "
-                       "current scale min/1/max, frequency min/max; darker: higher density), "
+                       "current scale min/max, frequency min/max; darker: higher density), "
                        "on a symmetric log scale (linear within ±1). n² < 0: evanescent. "
                        "Dashed: the target resonance; dotted: the first cutoff met from the "
                        "launcher."}
@@ -115,5 +115,5 @@ def cma_figure(run) -> dict | None:
             "caption": "Electron-only CMA diagram: cutoffs P = 0, R = 0, L = 0, the upper-hybrid "
                        "resonance S = 0 and the electron cyclotron resonance Y = 1. Coloured: "
                        "each feed's path from the launcher (dot) to the far end of the chamber "
-                       "at the envelope corners (density min/max, current scale min/1/max, "
+                       "at the envelope corners (density min/max, current scale min/max, "
                        "frequency min/max)."}

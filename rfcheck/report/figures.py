@@ -70,11 +70,16 @@ def axis_field_figure(run) -> dict | None:
                    label=f"resonance, feed {feed.id} ({feed.frequency / 1e9:.4g} GHz, h={h})")
     ymax = ax.get_ylim()[1]
     marks: dict[float, list[str]] = {}
+    outside: list[str] = []
     for name, zz in ([(lm.id, lm.z) for lm in model.chamber.landmarks]
                      + [(f"window {w.id}", w.z) for w in model.windows]
                      + [(f"launch {f.id}", f.launch.z) for f in model.feeds]):
         marks.setdefault(round(zz, 6), []).append(name)
+    z_lo, z_hi = float(z[0]), float(z[-1])
     for zz, names in sorted(marks.items()):
+        if not z_lo <= zz <= z_hi:  # outside the chamber: named in the caption instead
+            outside.append(f"{' / '.join(names)} at z = {zz * 1e3:g} mm")
+            continue
         ax.axvline(zz * 1e3, color="0.35", lw=0.8, ls=":")
         ax.text(zz * 1e3, ymax * 0.98, " " + " / ".join(names), rotation=90, va="top", ha="left",
                 fontsize=7, color="0.25")
@@ -85,7 +90,8 @@ def axis_field_figure(run) -> dict | None:
     return {"id": "axis-field", "title": "On-axis field and resonance bands", "svg": _svg(fig, "axis"),
             "caption": "Magnitude of B on the chamber axis at nominal current (line) and over the "
                        "current tolerance (band); horizontal bands: resonance fields over each "
-                       "feed's frequency tolerance; dotted: landmarks, windows, launchers."}
+                       "feed's frequency tolerance; dotted: landmarks, windows, launchers."
+                       + (f" Outside the chamber: {'; '.join(outside)}." if outside else "")}
 
 
 def all_figures(run) -> list[dict]:

@@ -1,7 +1,7 @@
 """Wave accessibility along each feed's launch path: reaching the resonance, overdense routes.
 
 Both rules read the shared launch path (rfcheck.rules.path.launch_path), evaluated at the
-envelope corners (density min/max × current scale min/1/max × frequency min/max).
+envelope corners (density min/max × current scale min/max × frequency min/max).
 """
 
 from __future__ import annotations
@@ -76,7 +76,7 @@ def reaches_resonance(ctx: Context, *, min_tunnelling_factor: float,
     launcher and the mode's target layer — the ECR for R and O, the upper-hybrid layer for
     X, ion-cyclotron layers for L, the second-harmonic field B_ECR/2 for ecr-harmonic-2
     feeds — is found and its WKB tunnelling factor exp(−2∫κ dz) taken. Verdict per envelope
-    corner (density min/max × current scale min/1/max × frequency min/max): direct (no
+    corner (density min/max × current scale min/max × frequency min/max): direct (no
     layer), by tunnelling, or blocked; the worst corner is reported.
 
     Why it matters

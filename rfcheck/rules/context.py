@@ -16,7 +16,6 @@ from rfcheck.model import SourceModel
 
 from .envelope import Envelope
 
-AXIS_POINTS = 2001
 
 
 @dataclass
@@ -43,23 +42,22 @@ class Context:
 
     @property
     def axis_z(self) -> np.ndarray:
-        """Axial sample points over the chamber (m)."""
-        if "axis_z" not in self._cache:
-            c = self.model.chamber
-            self._cache["axis_z"] = np.linspace(c.z_start, c.z_end, AXIS_POINTS)
-        return self._cache["axis_z"]
+        """Axial sample points over the chamber (m), those of the on-axis profiles."""
+        return self.axis_profiles()[0].z
 
     def axis_field(self, scale: np.ndarray | float | None = None) -> np.ndarray:
-        """|B|(z) on the axis over the chamber, shape (n_scale, n_z), T.
+        """|B|(z) on the axis at `axis_z`, shape (n_scale, n_z), T.
 
-        With `scale` None, the envelope's current scales are used (cached).
+        With `scale` None, the envelope's current scales (from the cached profiles); a scale of
+        exactly 1 uses the cached nominal profile; other scales are evaluated on demand.
         """
-        scales = self.envelope.current_scale if scale is None else np.atleast_1d(scale)
-        key = ("axis_field", tuple(np.round(scales, 12)))
-        if key not in self._cache:
-            b = self.field_model.axis_field(self.axis_z, scale=np.asarray(scales, dtype=float))
-            self._cache[key] = np.abs(np.atleast_2d(b))
-        return self._cache[key]
+        if scale is None:
+            return np.stack([p.b for p in self.axis_profiles()])
+        scales = np.atleast_1d(np.asarray(scale, dtype=float))
+        if scales.size == 1 and scales[0] == 1.0:
+            return self.nominal_profile().b[None, :]
+        b = self.field_model.axis_field(self.axis_z, scale=scales)
+        return np.abs(np.atleast_2d(b))
 
     def axis_profiles(self):
         """On-axis profiles (rfcheck.magnet.geometry.AxisProfile) for every envelope current scale."""

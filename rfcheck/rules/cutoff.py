@@ -6,6 +6,7 @@ from collections.abc import Iterator
 
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.physics.frequencies import critical_density
+from rfcheck.units import format_si
 
 from .context import Context
 from .registry import Option, rule
@@ -63,11 +64,13 @@ def o_mode_cutoff(ctx: Context, *, max_fraction: float, warn_fraction: float) ->
             float(critical_density(feed.frequency))
         where.setdefault("density", Quantity(n_max, "m^-3"))
         if passed:
-            msg = (f"peak density {n_max:.3g} m^-3 is {worst:.1%} of the cutoff density "
-                   f"{n_c:.3g} m^-3" + (f" (above the {warn_fraction:.0%} warning level)" if warn else ""))
+            msg = (f"peak density {format_si(n_max, 'm^-3')} is {worst:.1%} of the cutoff density "
+                   f"{format_si(n_c, 'm^-3')}"
+                   + (f" (above the {warn_fraction:.0%} warning level)" if warn else ""))
         else:
-            msg = (f"peak density {n_max:.3g} m^-3 exceeds {max_fraction:.0%} of the cutoff density "
-                   f"{n_c:.3g} m^-3 ({worst:.2f} n_c): the wave is cut off before the resonance")
+            msg = (f"peak density {format_si(n_max, 'm^-3')} exceeds {max_fraction:.0%} of the cutoff "
+                   f"density {format_si(n_c, 'm^-3')} ({worst:.2f} n_c): the wave is cut off before "
+                   "the resonance")
         yield ctx.finding(subject, requirement, passed=passed, warn=warn, message=msg,
                           measured=Quantity(worst, "1"), limit=Quantity(max_fraction, "1"),
                           margin=Quantity(margin, "1"), worst_case=where)

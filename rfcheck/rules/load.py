@@ -51,7 +51,7 @@ def plasma_reflection(ctx: Context, *, max_reflected_fraction: float) -> Iterato
     n²(z) of the launched mode: R and L along B, O and X across B are exact in this scalar
     form; a declared oblique angle uses the branch's n² at that angle (an estimate without
     mode coupling). Collisions ν = ν_en + ν_ei enter as ω → ω + iν. Evaluated at the envelope
-    corners (density min/max × current scale min/1/max × frequency min/max, each with the
+    corners (density min/max × current scale min/max × frequency min/max, each with the
     electron temperature of least collisional damping); the largest reflected fraction is
     reported with the energy balance R + T + A = 1 of that solution.
 

@@ -23,7 +23,7 @@ the named branch of the cold dispersion relation at that angle, held fixed along
 
 Envelope: the accessibility and full-wave solutions are one-dimensional problems for one
 profile, so they are evaluated at the envelope corners, not over the whole grid: density
-min/max × current scale min/1/max × frequency min/max (12 profiles at most per feed). At
+min/max × current scale min/max × frequency min/max (8 profiles at most per feed). At
 each corner the full-wave n² takes the electron temperature (min or max) that gives the
 smaller collision frequency at the peak density: the least collisional damping, which in
 general reflects the most. Rules that need no profile solution (optical depth, ν/ω) are
@@ -209,9 +209,9 @@ class LaunchPath:
     # ---- corners
 
     def corners(self) -> list[Corner]:
-        """Density min/max × current scale min/1/max × frequency min/max."""
+        """Density min/max × current scale min/max × frequency min/max (8 corners at most)."""
         di = sorted({0, self.densities.size - 1})
-        si = sorted({0, int(np.argmin(np.abs(self.scales - 1.0))), self.scales.size - 1})
+        si = sorted({0, self.scales.size - 1})
         fi = sorted({0, self.frequencies.size - 1})
         out = []
         for i in di:

@@ -167,7 +167,7 @@ def test_path_characteristics_are_json_ready():
     text = json.dumps(chars, allow_nan=False)  # raises on NaN or infinity
     entry = chars["main"]
     assert len(entry["z"]["value"]) <= 200
-    assert len(entry["corners"]) == 12  # density 2 × current scale 3 × frequency 2
+    assert len(entry["corners"]) == 8  # density 2 × current scale 2 × frequency 2
     for c in entry["corners"]:
         assert len(c["n2_real"]["value"]) == len(entry["z"]["value"])
         assert c["verdict"] == "direct"
