@@ -8,7 +8,7 @@ from __future__ import annotations
 import hashlib
 import math
 import traceback
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 from rfcheck import __version__
 from rfcheck.findings import Finding, Quantity, Severity, Status
@@ -114,9 +114,12 @@ def run(loaded: LoadedSpec, policy: Policy) -> Run:
                                         f"{exc} (at {tb.name}, line {tb.lineno})")]
         for f in produced:
             if f.status in (Status.FAIL, Status.WARN):
-                w = policy.waiver_for(f.rule, f.subject)
+                w, expired = policy.waiver_for(f.rule, f.subject)
                 if w is not None:
                     f = f.waived(w.to_json())
+                elif expired is not None:
+                    f = replace(f, message=f"{f.message} [waiver {expired.reference} expired on "
+                                           f"{expired.expires}: not applied]")
             findings.append(f)
     from rfcheck.characteristics import characteristics
 

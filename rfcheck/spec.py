@@ -561,25 +561,35 @@ class _CrossCheck:
         return out
 
     def _measured(self, key: str, meas: MeasuredSpec):
-        from rfcheck.measured import MeasuredDataError, read_axis_table, read_field_map
+        from rfcheck.measured import MeasuredDataError, check_coverage, read_axis_table, read_field_map
 
         file = (self.path.parent / meas.file).resolve()
+        c = self.spec.chamber
+        chamber = m.Chamber(c.radius, c.z.start, c.z.end)
         try:
             if key == "axis_table":
                 z, b = read_axis_table(file)
-                return m.AxisTable(meas.id, str(file), tuple(map(float, z)), tuple(map(float, b)),
-                                   meas.scales_with_current)
-            r, z, br, bz = read_field_map(file)
-            return m.FieldMap(meas.id, str(file), tuple(map(float, r)), tuple(map(float, z)),
-                              tuple(tuple(map(float, row)) for row in br),
-                              tuple(tuple(map(float, row)) for row in bz),
-                              meas.scales_with_current)
+                coverage = check_coverage(z, chamber)
+                source = m.AxisTable(meas.id, str(file), tuple(map(float, z)),
+                                     tuple(map(float, b)), meas.scales_with_current)
+            else:
+                r, z, br, bz = read_field_map(file)
+                coverage = check_coverage(z, chamber, r)
+                source = m.FieldMap(meas.id, str(file), tuple(map(float, r)), tuple(map(float, z)),
+                                    tuple(tuple(map(float, row)) for row in br),
+                                    tuple(tuple(map(float, row)) for row in bz),
+                                    meas.scales_with_current)
         except MeasuredDataError as exc:
-            where = f" ({Path(exc.path).name}:{exc.line})" if getattr(exc, "line", None) else ""
-            self.fail(("magnet", key, "file"), f"{exc}{where}")
+            self.fail(("magnet", key, "file"), str(exc))
+            return None
         except FileNotFoundError:
             self.fail(("magnet", key, "file"), f"file not found: {file}")
-        return None
+            return None
+        if not coverage.covers:
+            self.fail(("magnet", key, "file"),
+                      f"{file.name} does not cover the chamber: {'; '.join(coverage.problems)}")
+            return None
+        return source
 
     def _model(self, sources: list) -> m.SourceModel:
         s = self.spec

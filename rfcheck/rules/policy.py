@@ -73,11 +73,21 @@ class Policy:
     def option_values(self, rule: Rule) -> dict[str, float]:
         return {name: self.options[rule.id][name].value for name in rule.options}
 
-    def waiver_for(self, rule_id: str, subject: str) -> Waiver | None:
+    def waiver_for(self, rule_id: str, subject: str,
+                   today: dt.date | None = None) -> tuple[Waiver | None, Waiver | None]:
+        """(the waiver that applies, or None; an expired waiver that would have applied, or None).
+
+        A waiver applies through its expiry date inclusive; `today` defaults to the local date.
+        """
+        today = today or dt.date.today()
+        expired = None
         for w in self.waivers:
             if w.matches(rule_id, subject):
-                return w
-        return None
+                if w.expires and dt.date.fromisoformat(w.expires) < today:
+                    expired = expired or w
+                    continue
+                return w, None
+        return None, expired
 
 
 def _default_text() -> str:
@@ -206,9 +216,12 @@ def _parse(origin: str, raw: dict, lines: LineIndex, rules: dict[str, Rule],
         if expires is not None:
             if isinstance(expires, dt.date):
                 expires = expires.isoformat()
-            elif not isinstance(expires, str):
-                fail(loc + ("expires",), "expected a date such as 2027-06-30")
-                expires = None
+            else:
+                try:
+                    expires = dt.date.fromisoformat(str(expires)).isoformat()
+                except ValueError:
+                    fail(loc + ("expires",), f"found {expires!r}; expected a date such as 2027-06-30")
+                    expires = None
         if not problems:
             waivers.append(Waiver(w["rule"], w.get("subject"), w["reason"], w["reference"],
                                   expires))

@@ -29,8 +29,8 @@ def test_user_policy_overrides_selects_and_waives(tmp_path):
     assert policy.options["cutoff.o-mode"]["max_fraction"].value == pytest.approx(1.0)
     assert policy.selected("cutoff.o-mode") and policy.selected("line.waveguide-band")
     assert not policy.selected("resonance.ecr-in-chamber")
-    assert policy.waiver_for("line.waveguide-band", "feed main") is not None
-    assert policy.waiver_for("line.waveguide-band", "feed other") is None
+    assert policy.waiver_for("line.waveguide-band", "feed main")[0] is not None
+    assert policy.waiver_for("line.waveguide-band", "feed other") == (None, None)
     assert policy.sha256 != load_policy(None).sha256
 
 
@@ -55,3 +55,32 @@ def test_bad_policy_names_key_and_line(tmp_path, body, path, line, fragment):
     assert hit, [str(x) for x in probs]
     assert fragment in hit[0].message
     assert hit[0].line == line
+
+
+def test_waiver_applies_through_its_expiry_date_only(tmp_path):
+    import datetime as dt
+
+    p = tmp_path / "site.toml"
+    p.write_text('[[waiver]]\nrule = "cutoff.o-mode"\nreason = "overdense by design"\n'
+                 'reference = "DN-12"\nexpires = 2027-06-30\n', encoding="utf-8")
+    policy = load_policy(p)
+    live, _ = policy.waiver_for("cutoff.o-mode", "feed main", today=dt.date(2027, 6, 30))
+    assert live is not None and live.reference == "DN-12"
+    gone, expired = policy.waiver_for("cutoff.o-mode", "feed main", today=dt.date(2027, 7, 1))
+    assert gone is None and expired.reference == "DN-12"
+
+
+def test_waived_finding_stays_visible(tmp_path):
+    from conftest import DEMO
+    from rfcheck.findings import Status
+    from rfcheck.run import run
+    from rfcheck.spec import load_spec
+
+    p = tmp_path / "site.toml"
+    p.write_text('[options."cutoff.o-mode".warn_fraction]\nvalue = "10 %"\nsource = "test"\n'
+                 '[[waiver]]\nrule = "cutoff.o-mode"\nsubject = "feed main"\n'
+                 'reason = "process needs the density"\nreference = "ECN-9"\n', encoding="utf-8")
+    result = run(load_spec(DEMO), load_policy(p))
+    (f,) = [x for x in result.findings if x.rule == "cutoff.o-mode"]
+    assert f.status is Status.WAIVED and f.waiver["reference"] == "ECN-9"
+    assert f.measured.value > 0.1  # the measured value is kept beside the waiver
