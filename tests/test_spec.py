@@ -106,8 +106,10 @@ def _with_axis_table(demo_text: str) -> str:
     pytest.param("z [mm], B [G]\n0, 1200\n100, 900\n200, abc\n300, 500\n", "expected a number", 4,
                  id="non-numeric-cell"),
     pytest.param("z, B\n0, 1200\n100, 900\n200, 700\n300, 500\n", "no unit", 1, id="no-unit-header"),
-    pytest.param("z [mm], B [G]\n0, 1200\n100, 900\n200, 700\n", "does not cover the chamber", None,
-                 id="short-table"),
+    pytest.param("z [mm], B [G]\n0, 1200\n50, 1000\n100, 900\n200, 700\n",
+                 "does not cover the chamber", None, id="short-table"),
+    pytest.param("z [mm], B [G]\n0, 1200\n300, 900\n", "expected at least 4", None,
+                 id="too-few-rows"),
 ])
 def test_measured_table_errors_name_spec_key_and_csv_line(tmp_path, demo_text, csv, fragment,
                                                           csv_line):
