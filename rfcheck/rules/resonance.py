@@ -56,35 +56,10 @@ def ecr_in_chamber(ctx: Context, *, min_field_margin: float) -> Iterator[Finding
                                      f"absorption '{feed.absorption}' does not rely on an "
                                      "electron-cyclotron resonance")
             continue
-        grid = ctx.envelope.grid(feed)
-        b = ctx.axis_field()  # (ns, nz)
-        b_lo = b.min(axis=1)[None, :, None]
-        b_hi = b.max(axis=1)[None, :, None]
-        b_res = ecr_field(grid.frequency, harmonic=h)
-        rel = np.minimum(b_hi - b_res, b_res - b_lo) / b_res
-        worst, where = grid.worst(rel, "min")
-        margin = worst - min_field_margin
-        passed = margin >= 0
-        s_idx = 0
-        if "current_scale" in where:
-            s_idx = int(np.argmin(np.abs(ctx.envelope.current_scale - where["current_scale"].value)))
-        f_w = where["frequency"].value if "frequency" in where else feed.frequency
-        b_res_w = float(ecr_field(f_w, harmonic=h))
-        lo, hi = float(b[s_idx].min()), float(b[s_idx].max())
-        label = "ECR" if h == 1 else f"ECR harmonic {h}"
-        if passed:
-            msg = (f"{label} field {b_res_w * 1e3:.2f} mT lies within the on-axis range "
-                   f"{lo * 1e3:.2f}–{hi * 1e3:.2f} mT (margin {worst:.1%})")
-        elif worst < 0:
-            side = "above the highest" if b_res_w > hi else "below the lowest"
-            msg = (f"{label} field {b_res_w * 1e3:.2f} mT is {side} on-axis field in the chamber "
-                   f"({lo * 1e3:.2f}–{hi * 1e3:.2f} mT): no resonance on axis")
-        else:
-            msg = (f"{label} field {b_res_w * 1e3:.2f} mT is inside {lo * 1e3:.2f}–{hi * 1e3:.2f} mT "
-                   f"by only {worst:.1%} (required {min_field_margin:.0%})")
-        yield ctx.finding(subject, requirement, passed=passed, message=msg,
-                          measured=Quantity(worst, "1"), limit=Quantity(min_field_margin, "1"),
-                          margin=Quantity(margin, "1"), worst_case=where)
+        label = "ECR field" if h == 1 else f"ECR harmonic {h} field"
+        yield _on_axis_range(ctx, feed, subject, requirement, label,
+                             lambda f, h=h: ecr_field(f, harmonic=h), min_field_margin,
+                             "no resonance on axis")
 
 
 # --------------------------------------------------------------------------- shared helpers
@@ -103,6 +78,39 @@ def _scale_index(ctx: Context, where: dict) -> int:
 
 def _frequency_at(feed, where: dict) -> float:
     return where["frequency"].value if "frequency" in where else feed.frequency
+
+
+def _on_axis_range(ctx: Context, feed, subject: str, requirement: str, label: str, field_of,
+                   min_field_margin: float, absent: str) -> Finding:
+    """Whether the resonance field `field_of(f)` lies in the on-axis |B| range of the chamber.
+
+    Measured: min(max |B| − B_res, B_res − min |B|) / B_res at the worst envelope point
+    (current scale × frequency); negative when the resonance is missing.
+    """
+    grid = ctx.envelope.grid(feed)
+    b = ctx.axis_field()  # (n_scale, n_z)
+    b_lo = b.min(axis=1)[None, :, None]
+    b_hi = b.max(axis=1)[None, :, None]
+    b_res = field_of(grid.frequency)
+    rel = np.minimum(b_hi - b_res, b_res - b_lo) / b_res
+    worst, where = grid.worst(rel, "min")
+    margin = worst - min_field_margin
+    passed = margin >= 0
+    s_idx = _scale_index(ctx, where)
+    b_w = float(field_of(_frequency_at(feed, where)))
+    lo, hi = float(b[s_idx].min()), float(b[s_idx].max())
+    span = f"{lo * 1e3:.2f}–{hi * 1e3:.2f} mT"
+    if passed:
+        msg = f"{label} {b_w * 1e3:.4g} mT lies within the on-axis range {span} (margin {worst:.1%})"
+    elif worst < 0:
+        side = "above the highest" if b_w > hi else "below the lowest"
+        msg = f"{label} {b_w * 1e3:.4g} mT is {side} on-axis field in the chamber ({span}): {absent}"
+    else:
+        msg = (f"{label} {b_w * 1e3:.4g} mT is inside {span} by only {worst:.1%} "
+               f"(required {min_field_margin:.0%})")
+    return ctx.finding(subject, requirement, passed=passed, message=msg,
+                       measured=Quantity(worst, "1"), limit=Quantity(min_field_margin, "1"),
+                       margin=Quantity(margin, "1"), worst_case=where)
 
 
 def envelope_crossings(ctx: Context, feed, harmonic: int) -> list[list[tuple]]:
@@ -368,29 +376,5 @@ def harmonic_resonance(ctx: Context, *, min_field_margin: float) -> Iterator[Fin
                                      "or ion-cyclotron resonance")
             continue
         label, field_of = intended
-        grid = ctx.envelope.grid(feed)
-        b = ctx.axis_field()
-        b_lo = b.min(axis=1)[None, :, None]
-        b_hi = b.max(axis=1)[None, :, None]
-        b_res = field_of(grid.frequency)
-        rel = np.minimum(b_hi - b_res, b_res - b_lo) / b_res
-        worst, where = grid.worst(rel, "min")
-        margin = worst - min_field_margin
-        passed = margin >= 0
-        s_idx = _scale_index(ctx, where)
-        b_w = float(field_of(_frequency_at(feed, where)))
-        lo, hi = float(b[s_idx].min()), float(b[s_idx].max())
-        span = f"{lo * 1e3:.2f}–{hi * 1e3:.2f} mT"
-        if passed:
-            msg = (f"{label} {b_w * 1e3:.4g} mT lies within the on-axis range {span} "
-                   f"(margin {worst:.1%})")
-        elif worst < 0:
-            side = "above the highest" if b_w > hi else "below the lowest"
-            msg = (f"{label} {b_w * 1e3:.4g} mT is {side} on-axis field in the chamber ({span}): "
-                   "the intended resonance is absent")
-        else:
-            msg = (f"{label} {b_w * 1e3:.4g} mT is inside {span} by only {worst:.1%} "
-                   f"(required {min_field_margin:.0%})")
-        yield ctx.finding(subject, requirement, passed=passed, message=msg,
-                          measured=Quantity(worst, "1"), limit=Quantity(min_field_margin, "1"),
-                          margin=Quantity(margin, "1"), worst_case=where)
+        yield _on_axis_range(ctx, feed, subject, requirement, label, field_of, min_field_margin,
+                             "the intended resonance is absent")
