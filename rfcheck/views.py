@@ -18,24 +18,19 @@ _LABEL = {
 
 
 def text_table(run, *, colour: bool = False, width: int | None = None) -> str:
-    """A compact table: status, rule, subject, message; then the verdict line."""
+    """A compact listing: one line per finding (status, rule, subject), the message indented below."""
     import click
 
-    width = width or min(shutil.get_terminal_size((110, 24)).columns, 140)
-    rows = [(f, _LABEL[f.status], f.rule, f.subject) for f in run.findings]
-    w_rule = max([len(r[2]) for r in rows] + [4])
-    w_subj = max([len(r[3]) for r in rows] + [7])
-    indent = 7 + 2 + w_rule + 2 + w_subj + 2
-    msg_width = max(30, width - indent)
-    lines = [f"{run.spec_name}" + (f" (rev. {run.spec_revision})" if run.spec_revision else ""),
-             f"{'status':<7}  {'rule':<{w_rule}}  {'subject':<{w_subj}}  finding"]
-    for f, label, rule, subject in rows:
-        tag = f"{label:<7}"
+    width = width or min(shutil.get_terminal_size((100, 24)).columns, 120)
+    w_rule = max([len(f.rule) for f in run.findings] + [4])
+    title = run.spec_name + (f" (rev. {run.spec_revision})" if run.spec_revision else "")
+    lines = [title, "=" * min(len(title), width)]
+    for f in run.findings:
+        tag = f"{_LABEL[f.status]:<6}"
         if colour and _COLOUR[f.status]:
             tag = click.style(tag, fg=_COLOUR[f.status], bold=f.status is Status.FAIL)
-        wrapped = textwrap.wrap(f.message, msg_width) or [""]
-        lines.append(f"{tag}  {rule:<{w_rule}}  {subject:<{w_subj}}  {wrapped[0]}")
-        lines += [" " * indent + more for more in wrapped[1:]]
+        lines.append(f"{tag}  {f.rule:<{w_rule}}  {f.subject}")
+        lines += textwrap.wrap(f.message, width, initial_indent=" " * 8, subsequent_indent=" " * 8)
     counts = run.counts()
     summary = ", ".join(f"{n} {k}" for k, n in counts.items() if n)
     verdict = run.verdict.upper()

@@ -378,8 +378,8 @@ def min_b_ratios(trap: TrapGeometry, b_ecr: float) -> MinBRatios:
     """B_inj/B_ECR, B_ext/B_ECR, B_rad/B_ECR and B_min/B_ECR of a minimum-B trap.
 
     The semi-empirical ranges these are compared with (B_inj ~ 3-4, B_rad >= 2, B_ext ~ 2,
-    B_min ~ 0.8 times B_ECR) are in reference-values.md sec. 7 (D. Hitz et al., Rev. Sci.
-    Instrum. 73 (2002) 509; V. Mironov et al., arXiv:2012.08776); the rules apply them.
+    B_min ~ 0.8 times B_ECR) are published by D. Hitz et al., Rev. Sci.
+    Instrum. 73 (2002) 509 and V. Mironov et al., arXiv:2012.08776 (2020); the rules apply them.
     """
     return MinBRatios(trap.injection_max.b / b_ecr, trap.extraction_max.b / b_ecr,
                       trap.radial_wall.b / b_ecr, trap.volume_min.b / b_ecr)

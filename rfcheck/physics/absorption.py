@@ -13,8 +13,8 @@ References
 ----------
 T.H. Stix, *Waves in Plasmas* (AIP 1992), ch. 1; K.G. Budden, *The Propagation of Radio
 Waves* (Cambridge 1985), ch. 3; M. Bornatici, R. Cano, O. De Barbieri, F. Engelmann,
-Nucl. Fusion 23 (1983) 1153 (ECR absorption; tenuous-plasma forms as in
-reference-values.md §8.1).
+Nucl. Fusion 23 (1983) 1153 (ECR absorption; the tenuous-plasma limits
+of their results).
 """
 
 from __future__ import annotations
@@ -44,7 +44,7 @@ __all__ = [
 
 #: ν/ω limits of the regime labels and of the weak-collision expansion (common practice)
 WEAK_COLLISION_LIMIT = 0.1
-#: weakly relativistic limit of the optical-depth forms, eV (reference-values §8.1)
+#: weakly relativistic limit of the optical-depth forms, eV (validity of the tenuous, weakly relativistic forms)
 MAX_TEMPERATURE_EV = 20e3
 
 
@@ -101,7 +101,7 @@ def collisional_attenuation(f: ArrayLike, n_e: ArrayLike,
     Validity: cold electrons, ν independent of speed, no magnetic field (or the O mode with
     E ∥ B). Invalid where an input is negative. Caution where X ≥ 1: the decay is then
     largely evanescent (skin effect), not dissipation along a propagating path.
-    Reference: Stix (1992) ch. 1; reference-values.md §8.2.
+    Reference: Stix (1992) ch. 1.
 
     Parameters
     ----------
@@ -134,7 +134,7 @@ def collisional_attenuation_weak(f: ArrayLike, n_e: ArrayLike,
     First order in Z = ν/ω of the exact form (:func:`collisional_attenuation`). Validity:
     X < 1, Z ≤ 0.1 and X Z/(1 − X) ≤ 0.1 (the neglected terms are of relative order Z² and
     [XZ/(1 − X)]²; the form degrades near cutoff). NaN where X ≥ 1.
-    Reference: reference-values.md §8.2 (standard result); Stix (1992) ch. 1.
+    Reference: standard weak-collision expansion; Stix (1992) ch. 1.
 
     Parameters
     ----------
@@ -193,7 +193,7 @@ def collisional_regime(f: ArrayLike, collision_frequency: ArrayLike) -> Collisio
     ν/ω < 0.1 "weakly collisional" (resonant ECR heating possible; the resonance width
     is ΔB/B ~ ν/ω), 0.1 ≤ ν/ω < 1 "transitional", ν/ω ≥ 1 "collisional" (collisional,
     ohmic-like absorption). The thresholds are common practice, not sharp physics.
-    Reference: reference-values.md §8.2.
+    Reference: common practice (collisional broadening of a resonance, ΔB/B ~ ν/ω).
 
     Parameters
     ----------
@@ -259,8 +259,7 @@ def optical_depth_o1(f: ArrayLike, n_e: ArrayLike, t_e_ev: ArrayLike,
 
     References
     ----------
-    reference-values §8.1, computed from the Bornatici et al. 1983 tenuous forms
-    (Nucl. Fusion 23, 1153).
+    Tenuous-plasma limit of M. Bornatici et al., Nucl. Fusion 23 (1983) 1153.
     """
     return _optical_depth(1.0, 1, f, n_e, t_e_ev, l_b, 1.0, 1.0, "the O mode",
                           density_factor=True)
@@ -277,7 +276,7 @@ def optical_depth_o2(f: ArrayLike, n_e: ArrayLike, t_e_ev: ArrayLike, l_b: Array
 
     References
     ----------
-    reference-values §8.1, computed from the Bornatici et al. 1983 tenuous forms.
+    Tenuous-plasma limit of M. Bornatici et al., Nucl. Fusion 23 (1983) 1153.
     """
     return _optical_depth(4.0, 2, f, n_e, t_e_ev, l_b, 1.0, max_density_ratio, "the O mode")
 
@@ -296,7 +295,7 @@ def optical_depth_xm(harmonic: int, f: ArrayLike, n_e: ArrayLike, t_e_ev: ArrayL
 
     References
     ----------
-    reference-values §8.1, computed from the Bornatici et al. 1983 tenuous forms.
+    Tenuous-plasma limit of M. Bornatici et al., Nucl. Fusion 23 (1983) 1153.
     """
     m = int(harmonic)
     if m < 2:
@@ -315,6 +314,6 @@ def optical_depth_x2(f: ArrayLike, n_e: ArrayLike, t_e_ev: ArrayLike, l_b: Array
 
     References
     ----------
-    reference-values §8.1, computed from the Bornatici et al. 1983 tenuous forms.
+    Tenuous-plasma limit of M. Bornatici et al., Nucl. Fusion 23 (1983) 1153.
     """
     return optical_depth_xm(2, f, n_e, t_e_ev, l_b, max_density_ratio=max_density_ratio)

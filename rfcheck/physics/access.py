@@ -18,7 +18,7 @@ resonance; P = 0 is its cutoff at n_c); X mode (across B) → upper-hybrid reson
 (S = 0, X = 1 − Y²); oblique θ → the resonance cone A = S sin²θ + P cos²θ = 0 where the
 chosen branch is resonant, else the ECR layer. Landmarks are located with the
 electron-only conditions in X = n_e/n_c and Y = f_ce/f (Stix 1992, ch. 1–2;
-reference-values §2.3): ECR Y = 1, R cutoff X = 1 − Y, L cutoff X = 1 + Y, O cutoff X = 1,
+Stix 1992, ch. 1): ECR Y = 1, R cutoff X = 1 − Y, L cutoff X = 1 + Y, O cutoff X = 1,
 UHR X = 1 − Y²; ions shift them by O(m_e/m_i). The standard consequences follow without
 special cases: the R wave reaches the ECR from the high-field side (whistler, no density
 cutoff: "magnetic beach") but meets the R cutoff from the low-field side; the X mode
@@ -135,7 +135,7 @@ def path_landmarks(z: ArrayLike, b: ArrayLike, n_e: ArrayLike, f: float,
     """Crossings of the ECR, UHR, R/L/O cutoffs (and resonance cone at θ) along z.
 
     Linear interpolation of the electron-only conditions in X = n_e/n_c, Y = B/B_ECR
-    between samples (reference-values §2.3). Returns {name: array of z}.
+    between samples (Stix 1992, ch. 1). Returns {name: array of z}.
     """
     z = np.asarray(z, float)
     x = np.asarray(n_e, float) / critical_density(f)
@@ -192,7 +192,7 @@ def launch_path_access(z: ArrayLike, b: ArrayLike, n_e: ArrayLike, f: float, mod
 
     References
     ----------
-    Stix (1992) ch. 1–2 and 13; Budden (1985) ch. 19 (tunnelling); reference-values §2.3.
+    Stix (1992) ch. 1–2 and 13; Budden (1985) ch. 19 (tunnelling).
     """
     z = np.asarray(z, float)
     b = np.broadcast_to(np.asarray(b, float), z.shape)

@@ -166,8 +166,7 @@ def surface_wave_density(f: ArrayLike, eps_d: ArrayLike) -> NDArray:
     n_sw = n_c (1 + ε_d): the planar surface-wave resonance ε_p = 1 − n/n_c = −ε_d
     (e.g. 4.8 n_c for fused quartz, ε_d ≈ 3.8). Surface-wave sustained discharges need
     n_e above this at the wall. Cold, collisionless, planar (large radius) limit.
-    Reference: M. Moisan & Z. Zakrzewski, J. Phys. D 24 (1991) 1025 (from memory);
-    reference-values.md §7.
+    Reference: M. Moisan & Z. Zakrzewski, J. Phys. D 24 (1991) 1025 (from memory).
 
     Parameters
     ----------

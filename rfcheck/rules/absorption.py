@@ -101,7 +101,7 @@ def _cold(path: LaunchPath):
     text = (f"cold collisional full-wave absorbed fraction {a:.3g} of the {path.label} at the "
             f"fundamental (reflected {w.reflected:.3g}, transmitted {w.transmitted:.3g}); "
             "validity: cold plasma with collisions; no thermal optical-depth form exists for "
-            "the fundamental R/X wave (reference-values §8.1); the fraction includes the "
+            "the fundamental R/X wave (Bornatici et al. 1983); the fraction includes the "
             "reflection at any cutoff in front of the resonance (Budden)")
     return a, path.worst_case(corner, temperature=True), text, ""
 
@@ -132,8 +132,7 @@ def single_pass(ctx: Context, *, min_absorbed_fraction: float) -> Iterator[Findi
     a warning that states this reliance; it does not fail a review.
 
     Equation
-    See above; reference-values.md §8.1 (computed from the tenuous-plasma forms of
-    Bornatici et al.).
+    See above; the tenuous-plasma limits of Bornatici et al. (1983).
 
     Options
     min_absorbed_fraction: default 50 % (common practice: half the power absorbed in one
@@ -202,8 +201,8 @@ def collisional_regime_rule(ctx: Context, *, max_nu_over_omega: float) -> Iterat
     ν_ei = 2.91e-12 Z n_e lnΛ T_e^(−3/2).
 
     Options
-    max_nu_over_omega: default 0.1 (common practice; the weakly-collisional limit of
-    reference-values §8.2).
+    max_nu_over_omega: default 0.1 (common practice: the weakly collisional limit of resonant
+    heating, collisional broadening ΔB/B ~ ν/ω).
 
     References
     M. A. Lieberman & A. J. Lichtenberg, Principles of Plasma Discharges and Materials
@@ -256,7 +255,7 @@ def collisional_regime_rule(ctx: Context, *, max_nu_over_omega: float) -> Iterat
         margin = max_nu_over_omega - worst
         passed = margin >= 0
         msg = (f"ν/ω = {worst:.3g} on the path ({label}){at_res}; ν = {worst * TWO_PI * f_w:.3g} "
-               f"s^-1 from {source}; collisional broadening ΔB/B ~ ν/ω")
+               f"s⁻¹ from {source}; collisional broadening ΔB/B ~ ν/ω")
         if not passed:
             msg += f", above {max_nu_over_omega:.3g}: resonant absorption is collision-broadened"
         yield ctx.finding(subject, requirement, passed=passed, message=msg,

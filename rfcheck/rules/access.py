@@ -11,6 +11,7 @@ from collections.abc import Iterator
 
 import numpy as np
 
+from rfcheck.units import format_si
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.physics.frequencies import critical_density
 from rfcheck.physics.overdense import (cutoff_scale_length, ox_conversion_efficiency,
@@ -199,8 +200,8 @@ def _route_scores(path: LaunchPath, corner: Corner, harmonic: int, eps_d: float 
         n_sw = float(surface_wave_density(f, eps_d))
         ratio = corner.density / n_sw
         out.append((ratio, "surface wave on the dielectric window", ratio, 1.0,
-                    f"peak density {corner.density:.3g} m^-3 is {ratio:.3g} × the surface-wave "
-                    f"density n_c(1 + ε_d) = {n_sw:.3g} m^-3 (ε_d = {eps_d:.3g})"))
+                    f"peak density {format_si(corner.density, 'm^-3')} is {ratio:.3g} × the surface-wave "
+                    f"density n_c(1 + ε_d) = {format_si(n_sw, 'm^-3')} (ε_d = {eps_d:.3g})"))
     return out
 
 
@@ -270,8 +271,8 @@ def overdense_route(ctx: Context, *, min_route_efficiency: float) -> Iterator[Fi
             over = [c for c in path.corners() if c.density > float(critical_density(c.frequency))]
         if not over:
             n_c = float(critical_density(path.frequencies.min()))
-            why = path.problem or (f"the peak density {ctx.model.plasma.density.max:.3g} m^-3 "
-                                   f"stays below the cutoff density {n_c:.3g} m^-3")
+            why = path.problem or (f"the peak density {format_si(ctx.model.plasma.density.max, 'm^-3')} "
+                                   f"stays below the cutoff density {format_si(n_c, 'm^-3')}")
             yield ctx.not_applicable(subject, requirement, why)
             continue
         eps_d, window_text = _window_permittivity(ctx, feed)
