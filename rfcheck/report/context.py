@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from rfcheck import __version__
+from rfcheck.run import RULESET_VERSION
 from rfcheck import data
 from rfcheck.findings import Finding, Status
 
@@ -103,7 +104,7 @@ def build(run, figures: list[dict] | None = None) -> dict:
         "counts": run.counts(),
         "fingerprint": {"spec_file": run.spec_file, "spec_sha256": run.spec_sha256,
                         "policy_name": run.policy_name, "policy_sha256": run.policy_sha256,
-                        "tool_version": __version__},
+                        "tool_version": __version__, "ruleset": RULESET_VERSION},
         "sections": sections,
         "attention": attention,
         "characteristics": _characteristic_rows(run.characteristics),
