@@ -182,7 +182,7 @@ def parse_quantity(text: str, dimension: str) -> float:
         bad = getattr(exc, "unit_names", None) or unit_text
         if isinstance(bad, (list, tuple)):
             bad = bad[0] if bad else unit_text
-        raise UnitError(f"unknown unit '{bad}' in '{text}'{_suggest(str(bad))}; expected {expected}")
+        raise UnitError(f"unknown unit '{bad}' in '{text}'{_suggest(str(bad))}; expected {expected}") from None
 
     if dimension == "ratio" and unit_text == "":
         return number

@@ -24,3 +24,19 @@ def write_spec(tmp_path):
         return p
 
     return write
+
+
+@pytest.fixture(scope="session")
+def base_model():
+    """The bundled example's frozen model (tests vary it with dataclasses.replace)."""
+    from rfcheck.spec import load_spec
+
+    return load_spec(DEMO).model
+
+
+@pytest.fixture(scope="session")
+def policy():
+    """The default policy."""
+    from rfcheck.rules.policy import load_policy
+
+    return load_policy(None)

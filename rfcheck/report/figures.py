@@ -8,7 +8,6 @@ from __future__ import annotations
 
 import io
 
-import numpy as np
 
 
 def _mpl():

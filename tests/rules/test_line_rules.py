@@ -20,23 +20,11 @@ from rfcheck.model import Feed, Launch, Material, Window, WindowLayer
 from rfcheck.physics.constants import C, ETA0
 from rfcheck.rules.context import Context
 from rfcheck.rules.envelope import Envelope
-from rfcheck.rules.policy import load_policy
 from rfcheck.rules.registry import get_rule
-from rfcheck.spec import load_spec
 
 DEMO = Path(__file__).resolve().parents[2] / "examples" / "bench-ecr-reactor.toml"
 E_AIR = 3.0e6  # V/m, air at 1 atm (reference-values §5, common practice)
 INCH = 25.4e-3  # m, exact
-
-
-@pytest.fixture(scope="module")
-def base_model():
-    return load_spec(DEMO).model
-
-
-@pytest.fixture(scope="module")
-def policy():
-    return load_policy(None)
 
 
 def make_feed(line, f, tol=0.0, power=1.5e3):

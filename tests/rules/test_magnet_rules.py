@@ -38,7 +38,6 @@ from rfcheck.model import (AxisTable, Chamber, Coil, Feed, IonShare, Landmark, L
 from rfcheck.physics.constants import E_CHARGE, M_E, M_P, MU0, TWO_PI
 from rfcheck.rules.context import Context
 from rfcheck.rules.envelope import Envelope
-from rfcheck.rules.policy import load_policy
 from rfcheck.rules.registry import get_rule
 from rfcheck.spec import load_spec
 
@@ -71,11 +70,6 @@ def thick_solenoid_axis_field(ni, a1, a2, length, z):
         return u * np.log((a2 + np.sqrt(a2**2 + u**2)) / (a1 + np.sqrt(a1**2 + u**2)))
 
     return MU0 * j / 2 * (term(z + length / 2) - term(z - length / 2))
-
-
-@pytest.fixture(scope="module")
-def policy():
-    return load_policy(None)
 
 
 @pytest.fixture(scope="module")

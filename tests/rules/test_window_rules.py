@@ -28,7 +28,6 @@ from rfcheck.model import Feed, Launch, Material, Window, WindowLayer
 from rfcheck.physics.constants import C
 from rfcheck.rules.context import Context
 from rfcheck.rules.envelope import Envelope
-from rfcheck.rules.policy import load_policy
 from rfcheck.rules.registry import get_rule
 from rfcheck.rules.window_data import window_analysis, window_characteristics
 from rfcheck.spec import load_spec
@@ -40,16 +39,6 @@ LOSSLESS_ALUMINA = Material("alumina-lossless", 9.8, 0.0, source="test material"
 
 
 # ----------------------------------------------------------------------------- helpers
-
-@pytest.fixture(scope="module")
-def base_model():
-    return load_spec(DEMO).model
-
-
-@pytest.fixture(scope="module")
-def policy():
-    return load_policy(None)
-
 
 def make_feed(line="WR-340", f=F0, tol=0.0, power=1.5e3, duty=1.0, fid="main"):
     return Feed(fid, f, tol, power, duty, None, line, Launch(0.0, 1, "R", 0.0), "ecr")
