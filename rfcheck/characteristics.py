@@ -6,18 +6,11 @@ Each entry is computed through the public physics and magnet functions, at nomin
 
 from __future__ import annotations
 
-import math
-
 import numpy as np
 
+from rfcheck.findings import quantity_json as _q
 from rfcheck.physics.frequencies import critical_density, ecr_field
 from rfcheck.rules.context import Context
-
-
-def _q(value, unit: str, reason: str = "") -> dict:
-    if value is None or (isinstance(value, float) and not math.isfinite(value)):
-        return {"value": None, "unit": unit, "reason": reason or "undefined"}
-    return {"value": float(value), "unit": unit}
 
 
 def characteristics(ctx: Context) -> dict:

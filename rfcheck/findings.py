@@ -59,6 +59,12 @@ class Quantity:
         return out
 
 
+def quantity_json(value, unit: str, reason: str = "") -> dict:
+    """JSON form ``{"value", "unit"}`` of a value in SI; None or non-finite becomes null with a
+    reason, so no NaN or Infinity ever reaches the JSON."""
+    return Quantity(None if value is None else float(value), unit, reason).to_json()
+
+
 @dataclass(frozen=True)
 class Finding:
     """One verdict of one rule on one subject, at the worst point of the envelope."""

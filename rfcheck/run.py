@@ -6,12 +6,11 @@
 from __future__ import annotations
 
 import hashlib
-import math
 import traceback
 from dataclasses import dataclass, field, replace
 
 from rfcheck import __version__
-from rfcheck.findings import Finding, Quantity, Severity, Status
+from rfcheck.findings import Finding, Status
 from rfcheck.rules.context import Context
 from rfcheck.rules.envelope import Envelope
 from rfcheck.rules.policy import Policy
@@ -132,12 +131,4 @@ def run(loaded: LoadedSpec, policy: Policy) -> Run:
         characteristics=chars, rules=tuple(used), model=model, context=ctx)
 
 
-def quantity(value, unit: str, reason: str = "") -> dict:
-    """JSON form of a value or list of values in SI; non-finite values become null with a reason."""
-    if isinstance(value, (list, tuple)):
-        vals = [float(v) for v in value if v is not None and math.isfinite(float(v))]
-        return {"value": vals, "unit": unit}
-    return Quantity(None if value is None else float(value), unit, reason).to_json()
-
-
-__all__ = ["Run", "RuleUse", "run", "quantity", "Severity"]
+__all__ = ["Run", "RuleUse", "run"]

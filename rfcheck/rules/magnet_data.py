@@ -14,21 +14,14 @@ the mirror ratio min(B_inj, B_ext) / on-axis minimum. Single values are at curre
 
 from __future__ import annotations
 
-import math
-
 import numpy as np
 
+from rfcheck.findings import quantity_json as _q
 from rfcheck.physics.frequencies import ecr_field
 
 from .context import Context
 
 __all__ = ["magnet_characteristics"]
-
-
-def _q(value, unit: str, reason: str = "") -> dict:
-    if value is None or not math.isfinite(float(value)):
-        return {"value": None, "unit": unit, "reason": reason or "undefined"}
-    return {"value": float(value), "unit": unit}
 
 
 def _range(values, unit: str) -> dict:

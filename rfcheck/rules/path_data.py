@@ -9,6 +9,7 @@ import math
 
 import numpy as np
 
+from rfcheck.findings import quantity_json as _q
 from rfcheck.physics.frequencies import critical_density, ecr_field
 
 from .path import NEAR_FIELD, Corner, LaunchPath, launch_path
@@ -19,12 +20,6 @@ __all__ = ["FIGURE_POINTS", "path_characteristics"]
 FIGURE_POINTS = 200
 #: significant digits kept in those arrays (figures need no more)
 DIGITS = 4
-
-
-def _q(value, unit: str, reason: str = "") -> dict:
-    if value is None or not math.isfinite(float(value)):
-        return {"value": None, "unit": unit, "reason": reason or "undefined"}
-    return {"value": float(value), "unit": unit}
 
 
 def _array(values, unit: str, reason: str = "not finite") -> dict:

@@ -14,9 +14,16 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from rfcheck.findings import quantity_json as _q
 from rfcheck.model import Feed, SourceModel, Window
-from rfcheck.physics.multilayer import (Embedding, Layer, line_embedding, reflection_band,
-                                        window_materials, window_response)
+from rfcheck.physics.multilayer import (
+    Embedding,
+    Layer,
+    line_embedding,
+    reflection_band,
+    window_materials,
+    window_response,
+)
 from rfcheck.physics.rfpower import disc_temperature_rise, return_loss_db, vswr
 from rfcheck.physics.waveguide import Line, guide_wavelength, line_from_name
 
@@ -253,12 +260,6 @@ def embedding_text(a: WindowAnalysis) -> str:
 # --------------------------------------------------------------------------------------
 # characteristics (numbers for the JSON and the report; no verdicts)
 # --------------------------------------------------------------------------------------
-def _q(value, unit: str, reason: str = "") -> dict:
-    if value is None or not math.isfinite(float(value)):
-        return {"value": None, "unit": unit, "reason": reason or "undefined"}
-    return {"value": float(value), "unit": unit}
-
-
 def _reflection_free(a: WindowAnalysis) -> dict:
     if len(a.materials) != 1:
         return {"value": None, "unit": "m",
