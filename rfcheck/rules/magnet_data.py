@@ -95,4 +95,44 @@ def magnet_characteristics(ctx: Context) -> dict:
                 entry[key + "_range"] = _range([getattr(o, key) for o in over], "1")
             ratios[feed.id] = entry
         out["min_b_ratios"] = ratios
+    out.update(field_arrays(ctx))
+    return out
+
+
+def _values(a, digits: int = 6) -> list:
+    """Nested lists of floats rounded to `digits` significant figures (compact JSON)."""
+    a = np.asarray(a, dtype=float)
+    return np.vectorize(lambda x: float(f"{x:.{digits}g}"), otypes=[float])(a).tolist()
+
+
+def field_arrays(ctx: Context, *, axis_points: int = 201, wall_z: int = 41, wall_phi: int = 24,
+                 map_r: int = 16, map_z: int = 61) -> dict:
+    """The nominal field as arrays for figures and other tools: on-axis |B|(z), |B| on the wall
+    over z × azimuth, and |B|(r, z) in the half plane at azimuth 0 (current scale 1)."""
+    from rfcheck.magnet.geometry import GeometryGrid, rz_field, wall_field
+
+    chamber, fm = ctx.model.chamber, ctx.field_model
+    profile = ctx.nominal_profile()
+    step = max(1, (len(profile.z) - 1) // (axis_points - 1))
+    out = {"axis_profile": {"z": {"value": _values(profile.z[::step]), "unit": "m"},
+                            "b": {"value": _values(profile.b[::step]), "unit": "T"}}}
+    try:
+        wall = wall_field(fm, chamber, 1.0, GeometryGrid(wall_z=wall_z, azimuths=wall_phi))
+        rz = rz_field(fm, chamber, 1.0, 0.0, map_r, map_z)
+    except ValueError as exc:  # measured data that do not cover the wall
+        out["wall_field"] = {"value": None, "unit": "T", "reason": str(exc)}
+        return out
+    if np.isfinite(wall.b).all():
+        out["wall_field"] = {"z": {"value": _values(wall.z), "unit": "m"},
+                             "azimuth": {"value": _values(wall.phi), "unit": "rad"},
+                             "b": {"value": _values(wall.b), "unit": "T"}}
+    else:
+        out["wall_field"] = {"value": None, "unit": "T", "reason": "undefined on the wall"}
+    if np.isfinite(rz.b).all():
+        out["rz_field"] = {"r": {"value": _values(rz.r), "unit": "m"},
+                           "z": {"value": _values(rz.z), "unit": "m"},
+                           "azimuth": {"value": float(rz.phi), "unit": "rad"},
+                           "b": {"value": _values(rz.b), "unit": "T"}}
+    else:
+        out["rz_field"] = {"value": None, "unit": "T", "reason": "undefined in the chamber"}
     return out

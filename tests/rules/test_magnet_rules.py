@@ -413,3 +413,24 @@ def test_min_b_example_meets_the_published_ranges(policy):
     assert ratios["feed klystron B_ext/B_ECR"].measured.value >= 1.8
     assert ratios["feed klystron B_rad/B_ECR"].measured.value >= 2
     assert 0.4 <= ratios["feed klystron B_min/B_ECR"].measured.value <= 0.8
+
+
+def test_field_arrays_in_the_json_for_a_uniform_field(tmp_path):
+    # a uniform 0.1 T field is 0.1 T everywhere: on axis, on the wall and in the r-z plane
+    from conftest import DEMO
+    from rfcheck.rules.policy import load_policy
+    from rfcheck.run import run
+
+    text = DEMO.read_text(encoding="utf-8")
+    start = text.index("coils = [")
+    end = text.index("]\n", text.index('{ id = "downstream"')) + 2
+    spec = tmp_path / "uniform.toml"
+    spec.write_text(text[:start] + 'uniform = { b = "1000 G" }\n' + text[end:], encoding="utf-8")
+    doc = json.loads(json.dumps(run(load_spec(spec), load_policy(None)).to_json(),
+                                allow_nan=False))
+    mag = doc["characteristics"]["magnet"]
+    assert mag["axis_profile"]["b"]["value"] == pytest.approx([0.1] * len(mag["axis_profile"]["z"]["value"]))
+    for key in ("wall_field", "rz_field"):
+        values = [x for row in mag[key]["b"]["value"] for x in row]
+        assert values == pytest.approx([0.1] * len(values)), key
+    assert len(mag["rz_field"]["r"]["value"]) == len(mag["rz_field"]["b"]["value"])
