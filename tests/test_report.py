@@ -68,3 +68,15 @@ def test_html_has_figures_as_inline_svg(demo_run):
     html = render_html(demo_run)
     assert html.count("<svg") >= 1
     assert "On-axis field" in html
+
+
+@pytest.mark.parametrize("name", ["bench-ecr-reactor.toml", "min-b-ion-source.toml", "starter.toml"])
+def test_every_bundled_example_renders(name):
+    from conftest import EXAMPLES
+
+    result = run(load_spec(EXAMPLES / name), load_policy(None))
+    assert not [f for f in result.findings if f.status.value == "error"], name
+    html = render_html(result)
+    for f in result.findings:
+        assert f.rule in html
+    json.dumps(result.to_json(), allow_nan=False)

@@ -53,6 +53,8 @@ def _characteristic_rows(chars: dict) -> list[dict]:
     rows = []
     for group, title in (("plasma", "Plasma envelope"), ("magnet", "Magnet")):
         for key, val in chars.get(group, {}).items():
+            if key in ARRAY_ENTRIES:
+                continue
             rows.append({"group": title, "name": key.replace("_", " "), "value": _fmt(val, format_si)})
     for kind, label in (("feeds", "Feed"), ("windows", "Window")):
         for ident, entry in chars.get(kind, {}).items():
@@ -62,9 +64,15 @@ def _characteristic_rows(chars: dict) -> list[dict]:
     return rows
 
 
+#: characteristics that are arrays for figures and tools: named in the JSON, not tabulated
+ARRAY_ENTRIES = {"axis_profile", "wall_field", "rz_field", "current_scales"}
+
+
 def _fmt(val, format_si) -> str:
     if isinstance(val, dict) and "unit" in val:
         v, unit = val.get("value"), val["unit"]
+        if isinstance(v, list) and v and isinstance(v[0], list):
+            return f"[{unit}] array, see the JSON"
         if isinstance(v, list):
             if unit == "m":
                 return ", ".join(f"{x * 1e3:.1f} mm" for x in v) or "none"
