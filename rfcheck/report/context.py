@@ -88,6 +88,8 @@ def _fmt(val, format_si) -> str:
         return format_si(v, unit)
     if isinstance(val, dict):
         return "; ".join(f"{k}: {_fmt(v, format_si)}" for k, v in val.items())
+    if isinstance(val, (list, tuple)):
+        return "; ".join(str(v) for v in val) or "none"
     return str(val)
 
 
