@@ -275,8 +275,13 @@ def resonance_crossings(profile: AxisProfile, b_res: float,
 
 
 def _azimuths(model, n: int) -> np.ndarray:
-    return np.array([0.0]) if model.axisymmetric else np.linspace(0, 2 * np.pi, n,
-                                                                   endpoint=False)
+    """Azimuths for sweeps: one for axisymmetric models, else n per full turn spread over one
+    symmetry period of |B| (FieldModel.azimuthal_period), at least 6."""
+    if model.axisymmetric:
+        return np.array([0.0])
+    period = getattr(model, "azimuthal_period", 2 * np.pi)
+    count = max(6, int(np.ceil(n * period / (2 * np.pi))))
+    return np.linspace(0, period, count, endpoint=False)
 
 
 def wall_field(model, chamber: Chamber, scale: float = 1.0,

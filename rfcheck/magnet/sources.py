@@ -31,6 +31,8 @@ everywhere: no iron yokes or pole pieces, no demagnetisation.
 
 from __future__ import annotations
 
+import math
+
 import hashlib
 from collections import OrderedDict
 from typing import Literal, NamedTuple
@@ -370,6 +372,26 @@ class FieldModel:
     def axisymmetric(self) -> bool:
         """True when no source depends on azimuth (no multipole)."""
         return all(s.axisymmetric for s in self.sources)
+
+    @property
+    def azimuthal_period(self) -> float:
+        """Smallest rotation about z (rad) that leaves |B| unchanged: 2π/g.
+
+        A multipole of n = poles/2 pole pairs whose segment count is a multiple of n is
+        invariant under a rotation by 2π/n (segment centres map onto centres and the
+        magnetisation angle (n+1)θ − n·orientation turns by 2π/n + 2π); axisymmetric sources
+        are invariant under any rotation. g is the greatest common divisor of the n of all
+        multipoles (1, i.e. no symmetry used, when a segment count breaks it).
+        """
+        g = 0
+        for s in self.sources:
+            if s.axisymmetric:
+                continue
+            n = s.mp.poles // 2
+            if not isinstance(s, _MultipoleSource) or s.mp.segments % n:
+                return TWO_PI
+            g = math.gcd(g, n)
+        return TWO_PI / g if g else TWO_PI
 
     @property
     def current_tolerance(self) -> float:

@@ -26,7 +26,7 @@ class Envelope:
     frequency_points: int = 5
 
     @classmethod
-    def of(cls, model: SourceModel, *, density_points: int = 9, scale_points: int = 5,
+    def of(cls, model: SourceModel, *, density_points: int = 9, scale_points: int = 3,
            frequency_points: int = 5) -> Envelope:
         d = model.plasma.density
         dens = np.geomspace(d.min, d.max, density_points) if d.max > d.min else np.array([d.min])

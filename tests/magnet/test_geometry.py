@@ -156,11 +156,31 @@ def test_hand_built_trap_wall_and_rz_arrays(hand_trap):
     model, trap = hand_trap
     grid = geo.GeometryGrid(wall_z=11, azimuths=24)
     wall = geo.wall_field(model, CHAMBER, grid=grid)
-    assert wall.b.shape == (11, 24)
+    # a hexapole (3 pole pairs, 24 segments) repeats |B| every 120°: 24 per turn -> 8 per period
+    assert model.azimuthal_period == pytest.approx(2 * np.pi / 3)
+    assert wall.b.shape == (11, 8) and wall.phi.max() < model.azimuthal_period
     assert wall.b.min() >= trap.last_closed.b - 1e-12
     rz = geo.rz_field(model, CHAMBER, n_r=5, n_z=7)
     assert rz.b.shape == (5, 7)
     np.testing.assert_allclose(rz.b[0], b0(rz.z), rtol=1e-9)
+
+
+def test_azimuthal_period_is_a_symmetry_of_b(hand_trap):
+    # rotating the observer by the period leaves |B| unchanged (Halbach pattern symmetry);
+    # half the period does not (six-fold |B| variation of a hexapole plus a solenoid)
+    model, _ = hand_trap
+    rng = np.random.default_rng(7)
+    r = rng.uniform(0.005, CHAMBER.radius, 50)
+    phi = rng.uniform(0, 2 * np.pi, 50)
+    z = rng.uniform(CHAMBER.z_start, CHAMBER.z_end, 50)
+
+    def mag(angle):
+        pts = np.stack([r * np.cos(phi + angle), r * np.sin(phi + angle), z], axis=-1)
+        return model.magnitude(pts, 1.0)
+
+    period = model.azimuthal_period
+    np.testing.assert_allclose(mag(period), mag(0.0), rtol=1e-10)
+    assert np.max(np.abs(mag(period / 2) - mag(0.0))) > 1e-4
 
 
 def test_scales_are_vectorised_consistently():
