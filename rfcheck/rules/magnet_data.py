@@ -108,7 +108,9 @@ def _values(a, digits: int = 6) -> list:
 def field_arrays(ctx: Context, *, axis_points: int = 201, wall_z: int = 41, wall_phi: int = 24,
                  map_r: int = 16, map_z: int = 61) -> dict:
     """The nominal field as arrays for figures and other tools: on-axis |B|(z), |B| on the wall
-    over z × azimuth, and |B|(r, z) in the half plane at azimuth 0 (current scale 1)."""
+    over z × azimuth (azimuths over one symmetry period of |B|, see
+    FieldModel.azimuthal_period), and |B|(r, z) in the half plane at azimuth 0 (current
+    scale 1)."""
     from rfcheck.magnet.geometry import GeometryGrid, rz_field, wall_field
 
     chamber, fm = ctx.model.chamber, ctx.field_model
