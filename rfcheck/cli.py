@@ -35,7 +35,12 @@ def write_atomic(path: Path, data: bytes) -> None:
     folder = path.parent if str(path.parent) else Path(".")
     if not folder.is_dir():
         raise UsageProblem(f"{path}: folder {folder} does not exist")
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=folder)
+    if path.is_dir():
+        raise UsageProblem(f"{path} is a folder; give a file name")
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=folder)
+    except OSError as exc:
+        raise UsageProblem(f"{path}: cannot write in {folder}: {exc.strerror}") from None
     try:
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)

@@ -134,3 +134,10 @@ def test_init_writes_a_spec_that_loads_and_never_overwrites(tmp_path, capsys):
 def test_schema_prints_json(capsys):
     code, out, _ = run_cli(["schema"], capsys)
     assert code == 0 and json.loads(out)["title"] == "rfcheck source specification"
+
+
+def test_output_to_a_folder_or_missing_folder_exits_2(tmp_path, capsys):
+    code, _, err = run_cli(["check", DEMO, "--json", tmp_path], capsys)
+    assert code == 2 and "is a folder" in err
+    code, _, err = run_cli(["check", DEMO, "--pdf", tmp_path / "no" / "r.pdf"], capsys)
+    assert code == 2 and "does not exist" in err and "Traceback" not in err
