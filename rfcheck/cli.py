@@ -29,14 +29,21 @@ class UsageProblem(Exception):
     """A command-line problem that is the user's to fix (exit code 2)."""
 
 
-def write_atomic(path: Path, data: bytes) -> None:
-    """Write `data` to `path` via a temporary file in the same folder and an atomic rename."""
+def check_destination(path: Path) -> Path:
+    """Refuse an output path whose folder is missing or which is itself a folder (before work)."""
     path = Path(path)
     folder = path.parent if str(path.parent) else Path(".")
     if not folder.is_dir():
         raise UsageProblem(f"{path}: folder {folder} does not exist")
     if path.is_dir():
         raise UsageProblem(f"{path} is a folder; give a file name")
+    return folder
+
+
+def write_atomic(path: Path, data: bytes) -> None:
+    """Write `data` to `path` via a temporary file in the same folder and an atomic rename."""
+    path = Path(path)
+    folder = check_destination(path)
     try:
         fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=folder)
     except OSError as exc:
@@ -115,6 +122,9 @@ def _exit_for(result, strict: bool) -> Exit:
 def check(spec: Path, policy_path: Path | None, json_out: str | None, pdf_out: str | None,
           strict: bool) -> None:
     """Check a source specification SPEC against the rule catalogue."""
+    for out in (json_out if json_out != "-" else None, pdf_out):
+        if out is not None:
+            check_destination(Path(out))
     result = _evaluate(spec, policy_path)
     _emit(result, json_out, pdf_out, quiet_table=False)
     raise SystemExit(_exit_for(result, strict))
