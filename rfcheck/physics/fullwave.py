@@ -55,6 +55,8 @@ __all__ = [
     "x_mode_slab_reflection",
     "evanescent_layers",
     "wkb_tunnelling_factor",
+    "MirrorReturn",
+    "mirror_return",
 ]
 
 _GAUSS = 0.5 / np.sqrt(3.0)  # Gauss–Legendre nodes at the centre ± h/(2√3)
@@ -65,7 +67,13 @@ class SlabResponse(NamedTuple):
     """Full-wave result. r is referred to z[0], t is the field at z[-1] per unit incident
     field at z[0] (X mode: the tangential component E_t). reflected + transmitted +
     absorbed + balance_residual = 1; field is E (or E_t) on the nodes z, per unit incident
-    amplitude."""
+    amplitude.
+
+    r_right and t_right are the same for a wave incident from the exit medium onto z[-1]:
+    its reflection referred to z[-1] and the field it transmits to z[0], both per unit
+    incident field (NaN where the exit medium does not propagate). They come from the same
+    transfer matrix: r_right from its columns, t_right from the conserved Wronskian
+    (det = 1), t_right (h_in+ − h_in−) = t (h_out+ − h_out−)."""
 
     r: complex
     t: complex
@@ -75,6 +83,8 @@ class SlabResponse(NamedTuple):
     balance_residual: float
     z: NDArray
     field: NDArray
+    r_right: complex = complex("nan")
+    t_right: complex = complex("nan")
 
 
 class EvanescentLayers(NamedTuple):
@@ -227,7 +237,7 @@ def _solve(z, evaluate, is_callable, coefficients, dissipation, frequency, left,
     n_left, hp, hm = _eigen_h(*left)
     if abs(n_left.imag) > 1e-12 * abs(n_left) or n_left.real <= 0:
         raise ValueError("the incident medium must propagate without loss (real N > 0)")
-    _, ht, _ = _eigen_h(*right)
+    n_right, ht, ht_in = _eigen_h(*right)
     e_all = np.append(q[0] + q[1] * ht, 1.0)
     h_all = np.append(q[2] + q[3] * ht, ht)
     log_all = np.append(log_s, 0.0)
@@ -243,8 +253,18 @@ def _solve(z, evaluate, is_callable, coefficients, dissipation, frequency, left,
     hcell = nodes[2::2] - nodes[:-2:2]
     absorbed = k0 * np.sum(hcell / 6.0 * (f[:-2:2] + 4.0 * f[1::2] + f[2::2])) / flux_in
     t = complex(np.exp(log_t)) if log_t.real > -700 else 0j
+    r_right = t_right = complex("nan")
+    if abs(n_right.imag) <= 1e-12 * abs(n_right) and n_right.real > 0:
+        # incidence from the exit side: u± = Q (1, h±) with Q the (normalised) transfer
+        # matrix z[-1] -> z[0]; no wave may come in from the left: r_right = −α(u−)/α(u+)
+        u_e, u_h = q[0][0] + q[1][0] * ht_in, q[2][0] + q[3][0] * ht_in
+        alpha_in = (u_h - hm * u_e) / (hp - hm)
+        alpha_out = (h_all[0] - hm * e_all[0]) / (hp - hm)
+        r_right = complex(-alpha_in / alpha_out)
+        t_right = complex(t * (ht - ht_in) / (hp - hm))
     return SlabResponse(complex(b / a), t, float(reflected), transmitted, float(absorbed),
-                        float(1.0 - reflected - transmitted - absorbed), nodes, e)
+                        float(1.0 - reflected - transmitted - absorbed), nodes, e,
+                        r_right, t_right)
 
 
 def slab_reflection(z: ArrayLike, n2: ArrayLike | Callable, frequency: float, *,
@@ -292,6 +312,71 @@ def slab_reflection(z: ArrayLike, n2: ArrayLike | Callable, frequency: float, *,
 
     return _solve(z, evaluate, is_callable, coefficients, dissipation, frequency, left,
                   right, rtol, max_phase_step)
+
+
+class MirrorReturn(NamedTuple):
+    """Power returned to the incident side by a slab backed by a mirror at an unknown distance.
+
+    worst and best are the largest and smallest returned fractions |r_tot|² over the round-
+    trip phase between the slab's exit and the mirror; the returned amplitude traces the
+    circle ``centre`` + ``radius`` e^(iφ) in the complex plane as the phase runs over 2π.
+    """
+
+    worst: float
+    best: float
+    centre: complex
+    radius: float
+
+
+def mirror_return(response: SlabResponse, mirror: float = 1.0, *, n_left: float = 1.0,
+                  n_right: float = 1.0) -> MirrorReturn:
+    """Returned power of a slab with a mirror of amplitude reflectance ``mirror`` behind it.
+
+    With the power-normalised scattering parameters of the slab between lossless port media
+    of index n_left, n_right (s11 = r, s22 = r_right, s21 = t √(n_right/n_left),
+    s12 = t_right √(n_left/n_right)) and the mirror's round trip u = m e^(iφ) (|u| = m), the
+    returned amplitude is the Möbius map
+
+        r_tot(u) = s11 + s12 s21 u / (1 − s22 u),
+
+    which takes the circle |u| = m to the circle of centre s11 + k s22'*/(1 − |s22'|²) and
+    radius |k|/(1 − |s22'|²), with s22' = m s22 and k = m s12 s21. The worst case over the
+    unknown distance (phase) is |centre| + radius, the best ||centre| − radius| (the circle's
+    nearest point to the origin). For a passive slab both lie in [0, 1]; a lossless
+    slab gives the unit circle (everything returns at every phase). Checked in the tests
+    against the Salisbury screen (a sheet of η0 a quarter wave in front of a metal plate
+    returns nothing; at half a wave everything).
+
+    Parameters
+    ----------
+    response : SlabResponse
+        From :func:`slab_reflection` with a propagating, lossless exit medium (r_right and
+        t_right defined).
+    mirror : float, optional
+        Amplitude reflectance of the mirror, 0..1 (1: a metal wall).
+    n_left, n_right : float, optional
+        Real refractive indices of the incident and exit media (1: vacuum).
+    """
+    m = float(mirror)
+    if not 0.0 <= m <= 1.0:
+        raise ValueError(f"mirror amplitude reflectance must lie in [0, 1], got {mirror!r}")
+    s11 = complex(response.r)
+    if m == 0.0:
+        return MirrorReturn(abs(s11) ** 2, abs(s11) ** 2, s11, 0.0)
+    if not (np.isfinite(response.r_right) and np.isfinite(response.t_right)):
+        raise ValueError("the slab's exit medium does not propagate: no wave reaches the mirror")
+    s21 = complex(response.t) * np.sqrt(n_right / n_left)
+    s12 = complex(response.t_right) * np.sqrt(n_left / n_right)
+    s22 = m * complex(response.r_right)
+    k = m * s12 * s21
+    denom = 1.0 - abs(s22) ** 2
+    if denom <= 1e-15:  # total reflection from the exit side: nothing couples to the mirror
+        return MirrorReturn(abs(s11) ** 2, abs(s11) ** 2, s11, 0.0)
+    centre = s11 + k * np.conj(s22) / denom
+    radius = float(abs(k) / denom)
+    worst = min(1.0, (abs(centre) + radius) ** 2)
+    best = min(1.0, abs(abs(centre) - radius) ** 2)
+    return MirrorReturn(float(worst), float(best), complex(centre), radius)
 
 
 def x_mode_slab_reflection(z: ArrayLike, stix_s_d, frequency: float, *,

@@ -202,3 +202,69 @@ def test_evanescent_layers_and_wkb_closed_forms():
     lay = evanescent_layers(zl, np.array([1.0, 0.0, -1.0]), F_UNIT)
     assert lay.kappa_integral == pytest.approx([10.0 / 3.0], rel=1e-14)
     assert bool(lay.open_ends[0])
+
+
+# --------------------------------------------------------------------------- far side, mirror
+from rfcheck.physics.constants import EPS0, ETA0  # noqa: E402
+from rfcheck.physics.fullwave import mirror_return  # noqa: E402
+
+
+@pytest.mark.parametrize("profile", [
+    pytest.param(lambda z: 1.0 + 2.0 * z / 5.0 + 0.1j * (z / 5.0) ** 2, id="graded lossy ramp"),
+    pytest.param(lambda z: np.where(z < 2.0, 2.3 + 0.02j, 0.4 + 0.3j), id="two layers"),
+])
+def test_far_side_reflection_equals_the_reversed_solve(profile):
+    # r_right, t_right from the forward transfer matrix equal an independent solve of the
+    # reversed profile (same grid), and reciprocity gives t_right = t between equal media
+    # (Budden 1985 ch. 7: the Wronskian of two solutions is constant)
+    z = np.linspace(0.0, 5.0, 801)
+    n2 = profile(z)
+    fwd = slab_reflection(z, n2, F_UNIT, n2_right=1.0, rtol=None)
+    rev = slab_reflection(z, n2[::-1], F_UNIT, n2_right=1.0, rtol=None)
+    assert abs(fwd.r_right - rev.r) < 1e-10
+    assert abs(fwd.t_right - rev.t) < 1e-10
+    assert abs(fwd.t_right - fwd.t) < 1e-10
+
+
+def test_far_side_is_nan_for_an_evanescent_exit_medium():
+    z = np.linspace(0.0, 1.0, 11)
+    res = slab_reflection(z, np.full(z.shape, 0.5 + 0.0j), F_UNIT, n2_right=-1.0)
+    assert np.isnan(res.r_right) and res.transmitted == 0.0
+    with pytest.raises(ValueError):
+        mirror_return(res)
+
+
+def test_salisbury_screen_behind_a_mirror():
+    # a resistive sheet of η0 ohms per square in front of a metal plate: no reflection when
+    # a quarter wave in front of it, total reflection at half a wave (Salisbury screen;
+    # R. L. Fante & M. T. McCormack, IEEE Trans. Antennas Propag. 36 (1988) 1443). A thin
+    # slab of conductivity σ and thickness d with σ d = 1/η0 is that sheet: r = −1/3,
+    # t = 2/3 between vacuum half-spaces.
+    d = 1e-6
+    sigma = 1.0 / (ETA0 * d)
+    w = TWO_PI * F_UNIT
+    z = np.linspace(0.0, d, 20)
+    res = slab_reflection(z, np.full(z.shape, 1.0 + 1j * sigma / (w * EPS0)), F_UNIT,
+                          n2_right=1.0, rtol=None, max_phase_step=0.01)
+    assert res.r == pytest.approx(-1.0 / 3.0, abs=1e-4)
+    assert res.t == pytest.approx(2.0 / 3.0, abs=1e-4)
+    m = mirror_return(res)
+    assert m.best == pytest.approx(0.0, abs=1e-6)
+    assert m.worst == pytest.approx(1.0, abs=1e-6)
+    # brute force over the sheet-to-plate distance: Γ_in = s11 + s21 s12 u/(1 − s22 u),
+    # u = −e^(2i k0 L) (Pozar, Microwave Engineering, 4th ed., §4.3)
+    u = -np.exp(2j * np.linspace(0.0, np.pi, 4001))
+    g = np.abs(res.r + res.t * res.t_right * u / (1 - res.r_right * u)) ** 2
+    assert g.max() == pytest.approx(m.worst, abs=1e-6)
+    assert g.min() == pytest.approx(m.best, abs=1e-6)
+
+
+def test_lossless_slab_behind_a_mirror_returns_everything():
+    # a passive lossless system terminated by a perfect mirror returns all the power at every
+    # phase (energy conservation): the returned amplitude is the unit circle
+    z = np.linspace(0.0, 3.0, 61)
+    res = slab_reflection(z, np.full(z.shape, 2.5 + 0.0j), F_UNIT, n2_right=1.0, rtol=None)
+    m = mirror_return(res)
+    assert m.worst == pytest.approx(1.0, abs=1e-9)
+    assert m.best == pytest.approx(1.0, abs=1e-9)
+    assert mirror_return(res, 0.0).worst == pytest.approx(res.reflected, rel=1e-12)
