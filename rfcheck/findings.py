@@ -59,6 +59,17 @@ class Quantity:
         return out
 
 
+def _finite(obj):
+    """A JSON-ready copy with every non-finite float replaced by None."""
+    if isinstance(obj, dict):
+        return {k: _finite(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [_finite(v) for v in obj]
+    if isinstance(obj, float) and not math.isfinite(obj):
+        return None
+    return obj
+
+
 def quantity_json(value, unit: str, reason: str = "") -> dict:
     """JSON form ``{"value", "unit"}`` of a value in SI; None or non-finite becomes null with a
     reason, so no NaN or Infinity ever reaches the JSON."""
@@ -80,6 +91,9 @@ class Finding:
     worst_case: dict[str, Quantity] = field(default_factory=dict)
     message: str = ""
     waiver: dict | None = None
+    #: JSON-ready numbers behind the message that are not the measured value: the parts of
+    #: the launched power and their shares, the state (ignition / running) and the like
+    details: dict = field(default_factory=dict)
 
     def waived(self, waiver: dict) -> Finding:
         return replace(self, status=Status.WAIVED, waiver=waiver,
@@ -100,6 +114,8 @@ class Finding:
         }
         if self.waiver:
             out["waiver"] = dict(self.waiver)
+        if self.details:
+            out["details"] = _finite(self.details)
         return out
 
 

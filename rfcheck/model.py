@@ -43,8 +43,12 @@ class IonShare:
 
 @dataclass(frozen=True)
 class NeutralGas:
+    """The neutral gas. `pressure` is the envelope of the operating pressure (Pa): a single
+    value in the spec gives min = max; collisions enter every worst case at the end of the
+    range that is worse for the quantity judged."""
+
     species: str  # e.g. "Ar"
-    pressure: float  # Pa
+    pressure: Span  # Pa
     temperature: float  # K
 
 
@@ -86,12 +90,24 @@ class Landmark:
     z: float
 
 
+#: what an end of the chamber does to a wave that reaches it: "metal" (a wall or an electrode:
+#: reflects), "substrate" (a substrate on its holder: reflects), "dump" (a matched load or beam
+#: dump: absorbs), "open" (the plasma continues out of the chamber: the wave leaves)
+EndWall = Literal["metal", "substrate", "dump", "open"]
+REFLECTING_WALLS = ("metal", "substrate")
+
+
 @dataclass(frozen=True)
 class Chamber:
+    """`start_wall` / `end_wall`: the ends at z_start / z_end (None: not declared, which the
+    rules take as a reflecting metal wall, the conservative choice, and say so)."""
+
     radius: float  # m, plasma-chamber inner radius
     z_start: float  # m
     z_end: float  # m
     landmarks: tuple[Landmark, ...] = ()
+    start_wall: EndWall | None = None
+    end_wall: EndWall | None = None
 
     @property
     def length(self) -> float:
@@ -210,19 +226,48 @@ class Magnet:
 # --------------------------------------------------------------------------- RF feeds
 
 
+Polarisation = Literal["linear", "circular-right", "circular-left", "as-mode"]
+
+
 @dataclass(frozen=True)
 class Launch:
+    """Where and how a feed launches its wave.
+
+    `mode` is the wave the design intends to heat with; `polarisation` is what the launcher
+    actually sends: "linear" (E at `e_angle_to_field` from the projection of B on the
+    wavefront; None: not declared), "circular-right" / "circular-left" (named relative to
+    the static field: right is the R wave's sense, the electrons' gyration), "as-mode" (all
+    power in `mode`: an assumption the report states), or None (not declared: linear, the
+    polarisation of every guide's dominant mode and of a horn, with the E direction unknown).
+    """
+
     z: float  # m, launcher position on the axis
     direction: int  # +1 launches towards +z, -1 towards -z
     mode: Literal["R", "L", "O", "X"]
-    angle_to_field: float  # rad, angle between k and B at the launcher
+    angle_to_field: float  # rad, angle between k and B at the launcher, 0..π/2
+    polarisation: Polarisation | None = None
+    e_angle_to_field: float | None = None  # rad, linear polarisation only
 
 
 Absorption = Literal["ecr", "ecr-harmonic-2", "uhr", "icr", "lh", "helicon", "inductive"]
 
 
 @dataclass(frozen=True)
+class ShortRating:
+    """A reflected-power rating for a limited time: `power` (W) for at most `duration` (s)."""
+
+    power: float
+    duration: float
+
+
+@dataclass(frozen=True)
 class Feed:
+    """One RF feed. Ignition state: before breakdown (and whenever the plasma goes out) the
+    generator looks into the empty cavity, whose reflection `cold_cavity_gamma` (|Γ|; None:
+    not declared, taken as 1) it sees for `ignition_time` (s; None: not declared, taken as
+    continuous). `short_rating` is an optional time-limited reflected-power rating of the
+    generator or circulator load beside the continuous `max_reflected_power`."""
+
     id: str
     frequency: float  # Hz
     frequency_tolerance: float  # Hz, half-width
@@ -232,6 +277,9 @@ class Feed:
     line: str  # "WR-340", "circular:50 mm", "coax:...", "free-space"
     launch: Launch
     absorption: Absorption
+    cold_cavity_gamma: float | None = None
+    ignition_time: float | None = None
+    short_rating: ShortRating | None = None
 
     @property
     def average_power(self) -> float:

@@ -90,6 +90,8 @@ def run(loaded: LoadedSpec, policy: Policy) -> Run:
     """Evaluate every selected rule on the loaded spec; a rule that raises becomes an error finding."""
     model = loaded.model
     ctx = Context(model, Envelope.of(model))
+    ctx.selected_options.update({r.id: policy.option_values(r) for r in all_rules()
+                                 if policy.selected(r.id)})
     findings: list[Finding] = []
     used: list[RuleUse] = []
     for r in all_rules():

@@ -84,6 +84,7 @@ _EXAMPLES = {
     "density": "1e11 cm^-3", "energy": "5 eV", "temperature": "300 K", "pressure": "0.2 Pa",
     "power": "1.5 kW", "power_density": "1 mW/cm^2", "current": "120 A", "angle": "10 deg",
     "ratio": "2 %", "electric_field": "3 MV/m", "thermal_conductivity": "30 W/(m*K)",
+    "time": "5 s",
 }
 
 Length = _quantity("length")
@@ -102,6 +103,7 @@ Current = _quantity("current")
 Angle = _quantity("angle")
 Ratio = _quantity("ratio", non_negative=True)
 Conductivity = _quantity("thermal_conductivity", positive=True)
+Duration = _quantity("time", positive=True)
 
 
 class _Strict(BaseModel):
@@ -137,9 +139,15 @@ class IonSpec(_Strict):
     fraction: float = Field(gt=0, le=1, description="share of the positive charge (sum to 1)")
 
 
+class PressureSpan(_Strict):
+    min: Pressure
+    max: Pressure
+
+
 class NeutralSpec(_Strict):
     species: str = Field(min_length=1)
-    pressure: Pressure
+    pressure: Pressure | PressureSpan = Field(
+        description='operating pressure, "0.3 Pa", or its range { min = "0.1 Pa", max = "1 Pa" }')
     temperature: Temperature = 300.0
 
 
@@ -169,10 +177,21 @@ class LandmarkSpec(_Strict):
     z: Length
 
 
+_WALL_DOC = ('what the chamber end does to a wave: "metal" (wall or electrode, reflects), '
+             '"substrate" (substrate on its holder, reflects), "dump" (matched load or beam dump, '
+             'absorbs), "open" (the plasma continues out); not declared: metal (conservative)')
+
+
+class EndWallsSpec(_Strict):
+    start: Literal["metal", "substrate", "dump", "open"] | None = Field(None, description=_WALL_DOC)
+    end: Literal["metal", "substrate", "dump", "open"] | None = Field(None, description=_WALL_DOC)
+
+
 class ChamberSpec(_Strict):
     radius: PosLength
     z: ZSpan
     landmarks: list[LandmarkSpec] = Field(default_factory=list)
+    end_walls: EndWallsSpec = Field(default_factory=EndWallsSpec)
 
 
 class CoilSpec(_Strict):
@@ -231,8 +250,28 @@ class MagnetSpec(_Strict):
 class LaunchSpec(_Strict):
     z: Length
     direction: Literal["+z", "-z"] = "+z"
-    mode: Literal["R", "L", "O", "X"]
-    angle_to_field: Angle = 0.0
+    mode: Literal["R", "L", "O", "X"] = Field(description="the wave the design heats with")
+    angle_to_field: Angle = Field(0.0, description="angle between k and B at the launcher, 0-90 deg")
+    polarisation: Literal["linear", "circular-right", "circular-left", "as-mode"] | None = Field(
+        None, description='what the launcher sends: "linear" (every guide\'s dominant mode, a '
+                          'horn), "circular-right"/"circular-left" (after a polariser; named '
+                          'relative to B: right = the R wave), "as-mode" (all power in `mode`, '
+                          'an assumption); not declared: linear with the E direction unknown')
+    e_angle_to_field: Angle | None = Field(
+        None, description="linear polarisation: angle of E from the projection of B on the "
+                          "wavefront (0 deg across B: the O mode); not declared: the worst case")
+
+
+class ColdCavitySpec(_Strict):
+    """Reflection of the empty (unlit) cavity seen by the generator: |Γ| or VSWR, not both."""
+
+    gamma: Ratio | None = Field(None, description='|Γ| of the cold cavity, e.g. "0.9"')
+    vswr: float | None = Field(None, ge=1, description="VSWR of the cold cavity, e.g. 19")
+
+
+class ShortRatingSpec(_Strict):
+    power: Power
+    duration: Duration
 
 
 class FeedSpec(_Strict):
@@ -242,9 +281,16 @@ class FeedSpec(_Strict):
     power: Power
     duty_cycle: Ratio = 1.0
     max_reflected_power: Power | None = None
+    max_reflected_power_short: ShortRatingSpec | None = Field(
+        None, description='a time-limited rating: { power = "1.5 kW", duration = "10 s" }')
     line: str = Field(min_length=1, description='"WR-340", another EIA size, or "free-space"')
     launch: LaunchSpec
     absorption: Literal["ecr", "ecr-harmonic-2", "uhr", "icr", "lh", "helicon", "inductive"]
+    cold_cavity: ColdCavitySpec | None = Field(
+        None, description="reflection of the unlit cavity; not declared: |Γ| = 1 (the worst case)")
+    ignition_time: Duration | None = Field(
+        None, description="how long the generator may run into the unlit cavity before an "
+                          "interlock stops it; not declared: continuously")
 
 
 class MaterialSpec(_Strict):
@@ -444,6 +490,9 @@ class _CrossCheck:
             self.fail(("plasma", "ions"), f"ion fractions sum to {total:g}; expected 1")
         for i, ion in enumerate(p.ions):
             self._species(ion.species, ("plasma", "ions", i, "species"))
+        if p.neutral is not None and isinstance(p.neutral.pressure, PressureSpan):
+            if p.neutral.pressure.min > p.neutral.pressure.max:
+                self.fail(("plasma", "neutral", "pressure"), "min is greater than max")
         c = s.chamber
         if c.z.start >= c.z.end:
             self.fail(("chamber", "z"), "start must be below end")
@@ -478,6 +527,17 @@ class _CrossCheck:
             if f.duty_cycle > 1:
                 self.fail(("feed", i, "duty_cycle"), "duty cycle above 100 %")
             self._line(f.line, ("feed", i, "line"))
+            self._launch(f, i)
+            cc = f.cold_cavity
+            if cc is not None:
+                if (cc.gamma is None) == (cc.vswr is None):
+                    self.fail(("feed", i, "cold_cavity"),
+                              "give either gamma (|Γ|, e.g. \"0.9\") or vswr (e.g. 19), not both "
+                              "and not neither")
+                elif cc.gamma is not None and cc.gamma > 1:
+                    self.fail(("feed", i, "cold_cavity", "gamma"),
+                              f"|Γ| = {cc.gamma:g} above 1: a passive cavity reflects at most "
+                              "all the power")
         self.unique(s.material, ("material",), "material")
         known = self._material_ids() | {mt.id for mt in s.material}
         self.unique(s.window, ("window",), "window")
@@ -485,6 +545,8 @@ class _CrossCheck:
             if w.feed not in feed_ids:
                 self.fail(("window", i, "feed"),
                           f"no feed '{w.feed}'; feeds are: {', '.join(sorted(feed_ids))}")
+            else:
+                self._window_place(w, next(f for f in s.feed if f.id == w.feed), i)
             for j, layer in enumerate(w.layers):
                 if layer.material not in known:
                     self.fail(("window", i, "layers", j, "material"),
@@ -498,6 +560,40 @@ class _CrossCheck:
         if self.problems:
             return None  # type: ignore[return-value]
         return self._model(sources)
+
+    def _launch(self, f: FeedSpec, i: int) -> None:
+        la = f.launch
+        loc = ("feed", i, "launch")
+        if not 0.0 <= la.angle_to_field <= math.pi / 2 + 1e-12:
+            self.fail(loc + ("angle_to_field",),
+                      f"{math.degrees(la.angle_to_field):.4g} deg is outside 0–90 deg; give the "
+                      "angle between k and B folded into 0–90 deg (R and L are named relative "
+                      "to B, so the direction of B does not matter)")
+        if la.e_angle_to_field is not None:
+            if la.polarisation not in (None, "linear"):
+                self.fail(loc + ("e_angle_to_field",),
+                          f"only a linear polarisation has an E direction; this launch is "
+                          f"'{la.polarisation}'")
+            elif not 0.0 <= la.e_angle_to_field <= math.pi / 2 + 1e-12:
+                self.fail(loc + ("e_angle_to_field",),
+                          f"{math.degrees(la.e_angle_to_field):.4g} deg is outside 0–90 deg "
+                          "(the angle between E and the projection of B on the wavefront)")
+
+    def _window_place(self, w: WindowSpec, f: FeedSpec, i: int) -> None:
+        """A window sits in its feed's line: at or behind the launcher, never in the plasma
+        beyond it (where the feed's wave travels through the chamber)."""
+        c = self.spec.chamber
+        direction = 1 if f.launch.direction == "+z" else -1
+        ahead = direction * (w.z - f.launch.z)
+        inside = c.z.start < w.z < c.z.end
+        tol = 1e-9 * max(c.z.end - c.z.start, 1e-3)
+        if ahead > tol and inside:
+            self.fail(("window", i, "z"),
+                      f"window at z = {w.z * 1e3:.4g} mm lies inside the chamber "
+                      f"{ahead * 1e3:.4g} mm beyond the launcher of feed '{f.id}' (z = "
+                      f"{f.launch.z * 1e3:.4g} mm, launching {f.launch.direction}), where its "
+                      "wave travels through the plasma; a window belongs in the feed's line, at "
+                      "or behind the launcher")
 
     # ---- catalogue look-ups (lazy: physics data tables)
 
@@ -605,19 +701,24 @@ class _CrossCheck:
             density=m.Span(p.density.min, p.density.max),
             electron_temperature=m.Span(p.electron_temperature.min, p.electron_temperature.max),
             ions=tuple(m.IonShare(i.species, i.fraction) for i in p.ions),
-            neutral=(m.NeutralGas(p.neutral.species, p.neutral.pressure, p.neutral.temperature)
-                     if p.neutral else None),
+            neutral=(m.NeutralGas(p.neutral.species, _pressure_span(p.neutral.pressure),
+                                  p.neutral.temperature) if p.neutral else None),
             profile=profile,
         )
         chamber = m.Chamber(s.chamber.radius, s.chamber.z.start, s.chamber.z.end,
-                            tuple(m.Landmark(lm.id, lm.z) for lm in s.chamber.landmarks))
+                            tuple(m.Landmark(lm.id, lm.z) for lm in s.chamber.landmarks),
+                            s.chamber.end_walls.start, s.chamber.end_walls.end)
         magnet = m.Magnet(tuple(sources), s.magnet.current_tolerance, s.magnet.trap)
         feeds = tuple(
             m.Feed(f.id, f.frequency, f.frequency_tolerance, f.power, f.duty_cycle,
                    f.max_reflected_power, f.line,
                    m.Launch(f.launch.z, 1 if f.launch.direction == "+z" else -1, f.launch.mode,
-                            f.launch.angle_to_field),
-                   f.absorption)
+                            min(f.launch.angle_to_field, math.pi / 2), f.launch.polarisation,
+                            f.launch.e_angle_to_field),
+                   f.absorption, _cold_gamma(f.cold_cavity), f.ignition_time,
+                   (m.ShortRating(f.max_reflected_power_short.power,
+                                  f.max_reflected_power_short.duration)
+                    if f.max_reflected_power_short else None))
             for f in s.feed)
         windows = tuple(
             m.Window(w.id, w.feed, w.z,
@@ -641,3 +742,16 @@ class _CrossCheck:
             review=m.Review(s.review.prepared_by, s.review.checked_by, s.review.approved_by,
                             s.review.notes),
         )
+
+
+def _pressure_span(p) -> m.Span:
+    return m.Span(p, p) if isinstance(p, float) else m.Span(p.min, p.max)
+
+
+def _cold_gamma(cc: ColdCavitySpec | None) -> float | None:
+    """|Γ| of a declared cold cavity (from |Γ| or from the VSWR), None if not declared."""
+    if cc is None:
+        return None
+    if cc.gamma is not None:
+        return float(cc.gamma)
+    return float((cc.vswr - 1.0) / (cc.vswr + 1.0))

@@ -49,6 +49,7 @@ DIMENSIONS: dict[str, Dimension] = {
     "ratio": Dimension("ratio", "1", ("%", "ppm", "1")),
     "electric_field": Dimension("electric field", "V/m", ("V/m", "kV/cm", "MV/m")),
     "thermal_conductivity": Dimension("thermal conductivity", "W/(m K)", ("W/(m*K)",)),
+    "time": Dimension("duration", "s", ("s", "ms", "min", "h")),
 }
 
 # pint dimensionality strings for each expected dimension
@@ -67,6 +68,7 @@ _PINT_DIMS = {
     "ratio": "",
     "electric_field": "[mass] * [length] / [current] / [time] ** 3",
     "thermal_conductivity": "[mass] * [length] / [temperature] / [time] ** 3",
+    "time": "[time]",
 }
 
 # the SI unit each dimension converts to (energy goes to eV: temperatures of plasma)
@@ -85,6 +87,7 @@ _TARGET = {
     "ratio": "",
     "electric_field": "V/m",
     "thermal_conductivity": "W/m/K",
+    "time": "s",
 }
 
 _NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
@@ -93,7 +96,7 @@ _ANGULAR = re.compile(r"\b(rad|radian|radians|rpm|revolution|turn)\b")
 # unit spellings offered when a unit is unknown
 _SUGGESTIONS = (
     "Hz kHz MHz GHz THz mm cm m um in T mT G kG m^-3 cm^-3 eV keV K degC Pa mbar Torr "
-    "W kW MW mW A kA deg rad % ppm V/m kV/cm MV/m W/m^2 mW/cm^2 dB"
+    "W kW MW mW A kA deg rad % ppm V/m kV/cm MV/m W/m^2 mW/cm^2 dB s ms min h"
 ).split()
 
 
@@ -226,6 +229,7 @@ def _example(dimension: str) -> str:
         "ratio": "2 %",
         "electric_field": "3 MV/m",
         "thermal_conductivity": "30 W/(m*K)",
+        "time": "5 s",
     }[dimension]
 
 
@@ -257,3 +261,11 @@ def format_si(value: float | None, unit: str) -> str:
         exp = int(math.floor(math.log10(abs(value))))
         return f"{value / 10**exp:.4g}e{exp} {pretty}"
     return f"{value:.4g} {pretty}".rstrip()
+
+
+def format_fraction(x: float) -> str:
+    """A power fraction in words: a percentage with 3 significant digits, or, below 0.1 %,
+    the number itself (e.g. "2.3e-05"), so that tiny fractions are not rounded to 0 %."""
+    if x is None or not math.isfinite(x):
+        return "—"
+    return f"{x:.2g}" if abs(x) < 1e-3 else f"{100 * x:.3g} %"

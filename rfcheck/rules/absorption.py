@@ -14,6 +14,7 @@ from rfcheck.physics.constants import TWO_PI
 from rfcheck.physics.frequencies import ecr_field
 
 from .context import Context
+from .parts import mode_content
 from .path import LaunchPath, collision_frequency, launch_path, profile_shape
 from .registry import Option, rule
 from .resonance import ECR_HARMONIC
@@ -89,8 +90,9 @@ def _thermal(ctx, path, feed, h):
     return worst, where, text, ""
 
 
-def _cold(path: LaunchPath):
-    """Cold full-wave absorbed fraction of the R/X wave at the fundamental (worst corner)."""
+def _cold(path: LaunchPath, resonant: bool = True):
+    """Cold full-wave first-pass absorbed fraction of a part (worst corner): the R/X wave at
+    the fundamental, or the collisional absorption of a part without a resonance (L)."""
     worst = None
     for corner in path.corners():
         w = path.wave(corner)
@@ -98,6 +100,11 @@ def _cold(path: LaunchPath):
             worst = (corner, w)
     corner, w = worst
     a = w.absorbed
+    if not resonant:
+        text = (f"the {path.label} has no electron-cyclotron resonance: collisional first-pass "
+                f"absorbed fraction {a:.3g} (reflected {w.reflected:.3g}, to the far end "
+                f"{w.transmitted:.3g}); cold plasma with collisions")
+        return a, path.worst_case(corner, temperature=True), text, ""
     text = (f"cold collisional full-wave absorbed fraction {a:.3g} of the {path.label} at the "
             f"fundamental (reflected {w.reflected:.3g}, transmitted {w.transmitted:.3g}); "
             "validity: cold plasma with collisions; no thermal optical-depth form exists for "
@@ -115,8 +122,11 @@ def _cold(path: LaunchPath):
       applies="feeds with absorption = ecr or ecr-harmonic-2")
 def single_pass(ctx: Context, *, min_absorbed_fraction: float) -> Iterator[Finding]:
     """What it checks
-    The fraction of the power absorbed in one pass through the resonance layer met first
-    from the launcher. O mode at the fundamental: τ_O1 = π² (L_B/λ) μ X √(1 − X); at the
+    The fraction of the launched power absorbed in one pass through the resonance layer met
+    first from the launcher, summed over the parts of the launched power (its split into the
+    plasma's characteristic waves, see cutoff.o-mode), each part at its own worst envelope
+    point and the split at the end of its range that absorbs least. An L part has no
+    electron-cyclotron resonance: only its collisional absorption counts. O mode at the fundamental: τ_O1 = π² (L_B/λ) μ X √(1 − X); at the
     second harmonic X (and R) mode τ_X2 = 4π² (L_B/λ) μ X and O mode τ_O2 = μ τ_X2
     (tenuous-plasma, perpendicular-launch forms), with μ = T_e/(m_e c²), X = n_e/n_c at the
     crossing, L_B = B/|dB/dz| from the on-axis gradient at the crossing; absorbed
@@ -151,30 +161,56 @@ def single_pass(ctx: Context, *, min_absorbed_fraction: float) -> Iterator[Findi
                                      f"absorption '{feed.absorption}' does not rely on an "
                                      "electron-cyclotron resonance")
             continue
-        path = launch_path(ctx, feed)
-        if path.problem:
-            yield ctx.not_applicable(subject, requirement, path.problem)
+        content = mode_content(ctx, feed)
+        if not content.parts:
+            yield ctx.not_applicable(subject, requirement, content.reason)
             continue
-        if path.mode == "L":
-            yield ctx.finding(subject, requirement, passed=False, measured=Quantity(0.0, "1"),
-                              limit=Quantity(min_absorbed_fraction, "1"),
-                              margin=Quantity(-min_absorbed_fraction, "1"),
-                              message="the L wave has no electron-cyclotron resonance: no "
-                                      "resonant absorption in a single pass")
-            continue
-        if h == 1 and path.mode in ("R", "X"):
-            absorbed, where, text, why = _cold(path)
-        else:
-            absorbed, where, text, why = _thermal(ctx, path, feed, h)
+        per_part = {}
+        for part in content.parts:
+            path = launch_path(ctx, feed, part.mode)
+            if part.mode == "L":
+                a, where, text, why = _cold(path, resonant=False)
+            elif h == 1 and path.mode in ("R", "X"):
+                a, where, text, why = _cold(path)
+            else:
+                a, where, text, why = _thermal(ctx, path, feed, h)
+            per_part[part.mode] = (part, a, where, text, why)
+        # the worst split: each part at its own worst envelope point (conservative), the
+        # fractions at the end of their range that gives the least absorbed power
+        candidates = []
+        first = content.parts[0]
+        for f_first in {first.low, first.high}:
+            split = {first.mode: f_first}
+            if len(content.parts) > 1:
+                split[content.parts[1].mode] = 1.0 - f_first
+            total = sum(frac * per_part[m][1] for m, frac in split.items())
+            candidates.append((total if math.isfinite(total) else -math.inf, split, total))
+        _, split, absorbed = min(candidates, key=lambda t: t[0])
+        main = min(per_part.values(), key=lambda t: (t[1] if math.isfinite(t[1]) else -1.0))
+        where = dict(main[2])
+        why = next((t[4] for t in per_part.values() if t[4]), "")
+        texts = [f"{m} part ({_share(split.get(m, 0.0))}): {t[3]}" for m, t in per_part.items()]
         margin = absorbed - min_absorbed_fraction
         passed = bool(margin >= 0)
-        msg = text
+        lead = (f"single-pass absorbed fraction of the launched power {absorbed:.3g} "
+                f"(each part at its own worst envelope point)" if len(per_part) > 1 else
+                f"single-pass absorbed fraction {absorbed:.3g}")
+        msg = f"{lead}: " + "; ".join(texts)
         if not passed and math.isfinite(absorbed):
             msg += f"; below {min_absorbed_fraction:.0%}: {_MULTIPASS}"
+        details = {"polarisation": content.summary(),
+                   "parts": [{"part": m, "fraction": split.get(m, 0.0),
+                              "absorbed": t[1] if math.isfinite(t[1]) else None}
+                             for m, t in per_part.items()]}
         yield ctx.finding(subject, requirement, passed=passed,
                           measured=Quantity(absorbed, "1", why),
                           limit=Quantity(min_absorbed_fraction, "1"),
-                          margin=Quantity(margin, "1"), worst_case=where, message=msg)
+                          margin=Quantity(margin, "1"), worst_case=where, message=msg,
+                          details=details)
+
+
+def _share(x: float) -> str:
+    return f"{100 * x:.3g} %"
 
 
 @rule("absorption.collisional-regime", severity=Severity.WARNING,
@@ -188,7 +224,8 @@ def collisional_regime_rule(ctx: Context, *, max_nu_over_omega: float) -> Iterat
     ν = ν_en + ν_ei: electron–neutral momentum transfer n_g σ_m(T_e) v̄_e from the neutral
     gas (tabulated cross section at E = T_e) and electron–ion (Braginskii, NRL coefficient)
     at the path's highest density. The largest value over the envelope (density, frequency,
-    both electron temperatures) is compared with the limit; the value at the resonance
+    both electron temperatures, the highest neutral pressure of its range) is compared with
+    the limit; the value at the resonance
     crossing is printed beside it.
 
     Why it matters
@@ -225,7 +262,8 @@ def collisional_regime_rule(ctx: Context, *, max_nu_over_omega: float) -> Iterat
         grid = ctx.envelope.grid(feed)
         peak = float(path.shape.max())
         temps = path.temperatures
-        nu = collision_frequency(plasma, grid.density[..., None] * peak, temps)  # (nd,1,1,nt)
+        p_gas = gas.pressure.max if gas is not None else None  # the most collisional end
+        nu = collision_frequency(plasma, grid.density[..., None] * peak, temps, p_gas)  # (nd,1,1,nt)
         ratio_t = nu / (TWO_PI * grid.frequency[..., None])
         t_idx = np.argmax(ratio_t, axis=-1)
         ratio = ratio_t.max(axis=-1)
@@ -242,7 +280,7 @@ def collisional_regime_rule(ctx: Context, *, max_nu_over_omega: float) -> Iterat
         at_res = ""
         if c is not None:
             n_res = n_w * float(profile_shape(plasma.profile, ctx.model.chamber, c.z))
-            r_res = float(collision_frequency(plasma, n_res, t_w)) / (TWO_PI * f_w)
+            r_res = float(collision_frequency(plasma, n_res, t_w, p_gas)) / (TWO_PI * f_w)
             at_res = f"; {r_res:.3g} at the resonance z = {c.z * 1e3:.4g} mm"
         label = str(collisional_regime(f_w, worst * TWO_PI * f_w).regime)
         if gas is None:
@@ -251,7 +289,11 @@ def collisional_regime_rule(ctx: Context, *, max_nu_over_omega: float) -> Iterat
             source = (f"electron–ion collisions only (no cross section for {gas.species}; "
                       "electron–neutral collisions omitted)")
         else:
-            source = f"{gas.species} at {gas.pressure:.3g} Pa and electron–ion collisions"
+            source = f"{gas.species} at {gas.pressure.max:.3g} Pa and electron–ion collisions"
+            if gas.pressure.max > gas.pressure.min:
+                where["neutral_pressure"] = Quantity(gas.pressure.max, "Pa")
+                source += (f" (the highest pressure of the range {gas.pressure.min:.3g}–"
+                           f"{gas.pressure.max:.3g} Pa)")
         margin = max_nu_over_omega - worst
         passed = margin >= 0
         msg = (f"ν/ω = {worst:.3g} on the path ({label}){at_res}; ν = {worst * TWO_PI * f_w:.3g} "

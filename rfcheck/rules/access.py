@@ -1,7 +1,12 @@
-"""Wave accessibility along each feed's launch path: reaching the resonance, overdense routes.
+"""Wave accessibility of each part of a feed's launched power: reaching the resonance,
+overdense routes.
 
-Both rules read the shared launch path (rfcheck.rules.path.launch_path), evaluated at the
-envelope corners (density min/max × current scale min/max × frequency min/max).
+Each part (the launched power's split into the plasma's characteristic waves,
+rfcheck.rules.parts) travels its own launch path (rfcheck.rules.path.launch_path), evaluated
+at the envelope corners (density min/max × current scale min/max × frequency min/max). The
+findings name the part; a part above its cutoff that relies on an overdense route is judged
+by access.overdense-route alone, and cutoff.o-mode defers to it by name, so no two findings
+on one part contradict each other.
 """
 
 from __future__ import annotations
@@ -11,13 +16,16 @@ from collections.abc import Iterator
 
 import numpy as np
 
-from rfcheck.units import format_si
 from rfcheck.findings import Finding, Quantity, Severity
+from rfcheck.model import REFLECTING_WALLS
 from rfcheck.physics.frequencies import critical_density
 from rfcheck.physics.overdense import (cutoff_scale_length, ox_conversion_efficiency,
                                        ox_optimal_n_parallel, surface_wave_density)
+from rfcheck.units import format_fraction as _frac
+from rfcheck.units import format_si
 
 from .context import Context
+from .parts import mode_content, part_subject
 from .path import NEAR_FIELD, Corner, LaunchPath, launch_path
 from .registry import Option, rule
 from .resonance import ECR_HARMONIC
@@ -102,69 +110,162 @@ def reaches_resonance(ctx: Context, *, min_tunnelling_factor: float,
     Radio Waves (Cambridge 1985), ch. 19.
     """
     for feed in ctx.model.feeds:
-        subject = f"feed {feed.id}"
         requirement = f"reaches its resonance with tunnelling factor ≥ {min_tunnelling_factor:.3g}"
         skipped = _skip(ctx, feed, requirement)
         if skipped:
             yield skipped
             continue
-        path = launch_path(ctx, feed)
-        if path.problem:
-            yield ctx.finding(subject, requirement, passed=False, message=path.problem)
+        content = mode_content(ctx, feed)
+        if not content.parts:
+            yield ctx.finding(f"feed {feed.id}", requirement, passed=False, message=content.reason)
             continue
-        harmonic = ECR_HARMONIC.get(feed.absorption, 1)
-        worst = None
-        verdicts, targets = set(), []
-        for corner in path.corners():
-            r = path.reach(corner, harmonic)
-            verdicts.add(r.verdict)
-            targets.append(path.z_at(r.target_s))
-            key = (r.factor, r.verdict != "no-resonance")
-            if worst is None or key < worst[0]:
-                worst = (key, corner, r)
-        _, corner, r = worst
-        where = path.worst_case(corner)
-        factor = r.factor
-        if r.verdict == "no-resonance":
-            yield ctx.finding(subject, requirement, passed=False,
-                              message=f"the {path.label} meets no {r.target} layer on the path "
-                                      f"from {path.start_text} to the far end "
-                                      f"of the chamber: it cannot reach a resonance",
-                              measured=Quantity(0.0, "1"),
-                              limit=Quantity(min_tunnelling_factor, "1"),
-                              margin=Quantity(-min_tunnelling_factor, "1"), worst_case=where)
-            continue
-        margin = factor - min_tunnelling_factor
-        passed = margin >= 0
-        warn = passed and r.verdict == "tunnelling" and factor < warn_tunnelling_factor
-        target = f"the {r.target} at {_z_text(path, r.target_s)}"
-        if verdicts == {"direct"}:  # every corner alike: no worst point to name
-            lo, hi = min(targets), max(targets)
-            span = f"z = {_mm(lo)}" if hi - lo < 1e-6 else f"z = {lo * 1e3:.4g}–{_mm(hi)}"
-            where = {}
-            msg = (f"the {path.label} reaches the {r.target} ({span} over the envelope) "
-                   f"directly at every envelope corner: no cutoff between {path.start_text} "
-                   "and the layer")
-        elif r.verdict == "direct":
-            msg = (f"the {path.label} reaches {target} directly (no cutoff between "
-                   f"{path.start_text} and the layer)")
-        else:
-            share = f"{factor:.3g} of the power" if factor >= 1e-3 else f"{factor:.2e} of the power"
-            msg = (f"the {path.label} meets {_cutoff_text(r.cutoff)} at "
-                   f"{_z_text(path, r.cutoff_s)} before {target}: evanescent layer "
-                   f"{_mm(r.width)} wide, tunnelling factor exp(−2∫κ dz) = {share}")
-            if not passed:
-                msg += (f", below {min_tunnelling_factor:.3g}: the resonance is blocked and the "
-                        "power is reflected or absorbed before it")
-                if corner.density > float(critical_density(corner.frequency)):
-                    msg += ("; the peak density exceeds n_c there: access.overdense-route judges "
-                            "the overdense routes")
-            elif warn:
-                msg += f", reached only by tunnelling (below {warn_tunnelling_factor:.3g})"
-        yield ctx.finding(subject, requirement, passed=passed, warn=warn, message=msg,
-                          measured=Quantity(factor, "1"),
-                          limit=Quantity(min_tunnelling_factor, "1"),
-                          margin=Quantity(margin, "1"), worst_case=where)
+        for part in content.parts:
+            yield _reach_part(ctx, feed, part, content, requirement, min_tunnelling_factor,
+                              warn_tunnelling_factor)
+
+
+def resonant(feed, mode: str) -> bool:
+    """Whether this part of the feed's power has the feed's kind of resonance: the L wave has
+    no electron-cyclotron resonance, the R wave no ion-cyclotron resonance."""
+    if feed.absorption == "icr":
+        return mode != "R"
+    return mode != "L"
+
+
+def _who(path: LaunchPath, part, content) -> str:
+    if content.unmagnetised:
+        return "the wave (no magnetic field on the path, n² = P)"
+    return f"the {path.label} ({part.share} of the power)"
+
+
+def _details(part, content, **extra) -> dict:
+    out = {"part": part.mode, "fraction": {"low": part.low, "high": part.high},
+           "polarisation": content.summary()}
+    out.update(extra)
+    return out
+
+
+def _one_fate(path: LaunchPath, corner: Corner) -> str:
+    acc = path.access(corner)
+    load = path.load(corner)
+    if acc.first_cutoff and math.isfinite(acc.first_cutoff_z):
+        where = ("from the launcher on" if acc.first_cutoff == "launcher"
+                 else f"at {_z_text(path, abs(acc.first_cutoff_z - path.z0))} "
+                      f"({_cutoff_text(acc.first_cutoff)})")
+        text = f"is cut off {where} and returns towards the launcher"
+    else:
+        text = (f"crosses the plasma (a single pass absorbs {_frac(load.first.absorbed)}) to "
+                "the far end")
+        text += (" and comes back through it" if load.wall in REFLECTING_WALLS
+                 else " and leaves there")
+    return f"{text} ({_frac(load.returned)} returns)"
+
+
+def fate_text(path: LaunchPath, harmonic: int = 1) -> str:
+    """Where a part without a resonance goes over the envelope, in words: at the lowest and
+    the highest peak density (each at its corner where most returns), and the far end."""
+    corners = path.corners()
+    by_density: dict[float, Corner] = {}
+    for c in corners:
+        best = by_density.get(c.density)
+        if best is None or path.load(c).returned > path.load(best).returned:
+            by_density[c.density] = c
+    picks = [by_density[d] for d in sorted(by_density)]
+    if len(picks) > 2:
+        picks = [picks[0], picks[-1]]
+    texts = []
+    for c in picks:
+        texts.append(f"at peak density {format_si(c.density, 'm^-3')} it {_one_fate(path, c)}")
+    if len(texts) == 2 and texts[0].split(" it ", 1)[1] == texts[1].split(" it ", 1)[1]:
+        texts = [f"over the envelope it {_one_fate(path, picks[-1])}"]
+    return "; ".join(texts) + f"; {path.wall_text()}"
+
+
+def _deferred_to_route(ctx, path: LaunchPath, harmonic: int, min_tf: float) -> str:
+    """The overdense route (name) that delivers this part wherever the direct path fails it,
+    when every such corner is above n_c and access.overdense-route accepts the route there;
+    "" otherwise (the part is then judged here)."""
+    route_limit = ctx.option("access.overdense-route", "min_route_efficiency")
+    blocked = [c for c in path.corners() if path.reach(c, harmonic).factor < min_tf]
+    if route_limit is None or not blocked or not all(path.above_cutoff(c) for c in blocked):
+        return ""
+    low = min((best_route(ctx, path, c, route_limit) for c in blocked), key=lambda t: t[0])
+    return low[1] if low[0] >= 1.0 else ""
+
+
+def _reach_part(ctx, feed, part, content, requirement, min_tf, warn_tf) -> Finding:
+    subject = part_subject(feed, part.mode)
+    path = launch_path(ctx, feed, part.mode)
+    who = _who(path, part, content)
+    harmonic = ECR_HARMONIC.get(feed.absorption, 1)
+    if not resonant(feed, part.mode):
+        kind = "ion-cyclotron" if feed.absorption == "icr" else "electron-cyclotron"
+        return ctx.not_applicable(
+            subject, requirement,
+            f"{who} has no {kind} resonance to reach: {fate_text(path, harmonic)}; "
+            "load.plasma-reflection counts what returns, absorption.single-pass what is absorbed",
+            _details(part, content))
+    worst = None
+    verdicts, targets = set(), []
+    for corner in path.corners():
+        r = path.reach(corner, harmonic)
+        verdicts.add(r.verdict)
+        targets.append(path.z_at(r.target_s))
+        key = (r.factor, r.verdict != "no-resonance")
+        if worst is None or key < worst[0]:
+            worst = (key, corner, r)
+    _, corner, r = worst
+    where = path.worst_case(corner)
+    factor = r.factor
+    details = _details(part, content)
+    deferred = _deferred_to_route(ctx, path, harmonic, min_tf)
+    if r.verdict == "no-resonance":
+        msg = (f"{who} meets no {r.target} layer on the path from {path.start_text} to the far "
+               "end of the chamber")
+        if deferred:
+            return ctx.not_applicable(subject, requirement,
+                                      msg + f"; above n_c it relies on the overdense route "
+                                            f"{deferred}: access.overdense-route judges it",
+                                      details)
+        return ctx.finding(subject, requirement, passed=False,
+                           message=f"{who} meets no {r.target} layer on the path from "
+                                   f"{path.start_text} to the far end of the chamber: it cannot "
+                                   "reach a resonance",
+                           measured=Quantity(0.0, "1"), limit=Quantity(min_tf, "1"),
+                           margin=Quantity(-min_tf, "1"), worst_case=where, details=details)
+    margin = factor - min_tf
+    passed = margin >= 0
+    warn = passed and r.verdict == "tunnelling" and factor < warn_tf
+    target = f"the {r.target} at {_z_text(path, r.target_s)}"
+    if verdicts == {"direct"}:  # every corner alike: no worst point to name
+        lo, hi = min(targets), max(targets)
+        span = f"z = {_mm(lo)}" if hi - lo < 1e-6 else f"z = {lo * 1e3:.4g}–{_mm(hi)}"
+        where = {}
+        msg = (f"{who} reaches the {r.target} ({span} over the envelope) directly at every "
+               f"envelope corner: no cutoff between {path.start_text} and the layer")
+    elif r.verdict == "direct":
+        msg = (f"{who} reaches {target} directly (no cutoff between {path.start_text} and the "
+               "layer)")
+    else:
+        share = f"{factor:.3g} of it" if factor >= 1e-3 else f"{factor:.2e} of it"
+        msg = (f"{who} meets {_cutoff_text(r.cutoff)} at {_z_text(path, r.cutoff_s)} before "
+               f"{target}: evanescent layer {_mm(r.width)} wide, tunnelling factor "
+               f"exp(−2∫κ dz) = {share}")
+        if not passed:
+            if deferred:
+                return ctx.not_applicable(
+                    subject, requirement,
+                    msg + f", below {min_tf:.3g}; above n_c it relies on the overdense route "
+                          f"{deferred}: access.overdense-route judges it", details)
+            msg += (f", below {min_tf:.3g}: the resonance is blocked and this part is reflected "
+                    "or absorbed before it")
+            if path.above_cutoff(corner):
+                msg += "; the density exceeds n_c there and no overdense route delivers it"
+        elif warn:
+            msg += f", reached only by tunnelling (below {warn_tf:.3g})"
+    return ctx.finding(subject, requirement, passed=passed, warn=warn, message=msg,
+                       measured=Quantity(factor, "1"), limit=Quantity(min_tf, "1"),
+                       margin=Quantity(margin, "1"), worst_case=where, details=details)
 
 
 def _route_scores(path: LaunchPath, corner: Corner, harmonic: int, eps_d: float | None,
@@ -258,43 +359,63 @@ def overdense_route(ctx: Context, *, min_route_efficiency: float) -> Iterator[Fi
     1025; T. H. Stix, Waves in Plasmas (AIP 1992), ch. 2.
     """
     for feed in ctx.model.feeds:
-        subject = f"feed {feed.id}"
         requirement = (f"an overdense route delivers ≥ {min_route_efficiency:.0%} (surface wave: "
                        "n_peak ≥ n_c(1 + ε_d))")
         skipped = _skip(ctx, feed, requirement)
         if skipped:
             yield skipped
             continue
-        path = launch_path(ctx, feed)
-        over = []
-        if not path.problem:
-            over = [c for c in path.corners() if c.density > float(critical_density(c.frequency))]
-        if not over:
-            n_c = float(critical_density(path.frequencies.min()))
-            why = path.problem or (f"the peak density {format_si(ctx.model.plasma.density.max, 'm^-3')} "
-                                   f"stays below the cutoff density {format_si(n_c, 'm^-3')}")
-            yield ctx.not_applicable(subject, requirement, why)
+        content = mode_content(ctx, feed)
+        if not content.parts:
+            yield ctx.not_applicable(f"feed {feed.id}", requirement, content.reason)
             continue
-        eps_d, window_text = _window_permittivity(ctx, feed)
-        harmonic = ECR_HARMONIC.get(feed.absorption, 1)
-        worst = None
-        for corner in over:
-            best = max(_route_scores(path, corner, harmonic, eps_d, min_route_efficiency),
-                       key=lambda t: t[0])
-            if worst is None or best[0] < worst[1][0]:
-                worst = (corner, best)
-        corner, (score, name, figure, limit, detail) = worst
-        n_c = float(critical_density(corner.frequency))
-        passed = score >= 1.0
-        lead = f"peak density {corner.density / n_c:.3g} n_c: "
-        if passed:
-            msg = lead + f"route {name} available — {detail}"
-        else:
-            msg = lead + (f"no overdense route reaches its limit; best is {name} — {detail}, "
-                          f"below {limit:.3g}")
-        if eps_d is not None and "surface" in name:
-            msg += f" (window material {window_text})"
-        yield ctx.finding(subject, requirement, passed=passed, message=msg,
-                          measured=Quantity(figure, "1"), limit=Quantity(limit, "1"),
-                          margin=Quantity(figure - limit, "1"),
-                          worst_case=path.worst_case(corner))
+        for part in content.parts:
+            yield _route_part(ctx, feed, part, content, requirement, min_route_efficiency)
+
+
+def best_route(ctx: Context, path: LaunchPath, corner: Corner, min_efficiency: float):
+    """The best overdense route of one part at one corner: (score, name, figure, limit,
+    detail), score = figure / limit (the route delivers when score ≥ 1)."""
+    eps_d, _ = _window_permittivity(ctx, path.feed)
+    harmonic = ECR_HARMONIC.get(path.feed.absorption, 1)
+    return max(_route_scores(path, corner, harmonic, eps_d, min_efficiency), key=lambda t: t[0])
+
+
+def _route_part(ctx, feed, part, content, requirement, min_route_efficiency) -> Finding:
+    subject = part_subject(feed, part.mode)
+    path = launch_path(ctx, feed, part.mode)
+    who = _who(path, part, content)
+    details = _details(part, content)
+    if not resonant(feed, part.mode):
+        return ctx.not_applicable(subject, requirement,
+                                  f"{who} has no resonance for an overdense route to deliver "
+                                  "it to (cutoff.o-mode bounds its cutoff)", details)
+    over = [c for c in path.corners() if path.above_cutoff(c)]
+    if not over:
+        n_c = float(critical_density(path.frequencies.min()))
+        return ctx.not_applicable(
+            subject, requirement,
+            f"the density along the path stays below the cutoff density "
+            f"{format_si(n_c, 'm^-3')} (peak {format_si(ctx.model.plasma.density.max, 'm^-3')}): "
+            f"{who} needs no overdense route", details)
+    eps_d, window_text = _window_permittivity(ctx, feed)
+    worst = None
+    for corner in over:
+        best = best_route(ctx, path, corner, min_route_efficiency)
+        if worst is None or best[0] < worst[1][0]:
+            worst = (corner, best)
+    corner, (score, name, figure, limit, detail) = worst
+    n_c = float(critical_density(corner.frequency))
+    passed = score >= 1.0
+    lead = f"{who}, peak density {corner.density / n_c:.3g} n_c: "
+    if passed:
+        msg = lead + f"route {name} available — {detail}"
+    else:
+        msg = lead + (f"no overdense route reaches its limit; best is {name} — {detail}, "
+                      f"below {limit:.3g}")
+    if eps_d is not None and "surface" in name:
+        msg += f" (window material {window_text})"
+    return ctx.finding(subject, requirement, passed=passed, message=msg,
+                       measured=Quantity(figure, "1"), limit=Quantity(limit, "1"),
+                       margin=Quantity(figure - limit, "1"),
+                       worst_case=path.worst_case(corner), details=details)

@@ -25,10 +25,18 @@ class Context:
     rule_id: str = ""
     severity: Severity = Severity.ERROR
     _cache: dict = field(default_factory=dict)
+    #: option values (SI) of every selected rule: {rule id: {option: value}}; a rule that
+    #: defers to another (e.g. a cutoff to the overdense route that judges it) reads its limit
+    selected_options: dict = field(default_factory=dict)
 
     def for_rule(self, rule_id: str, severity: Severity) -> Context:
         """The same shared caches, labelled for one rule."""
-        return Context(self.model, self.envelope, rule_id, severity, self._cache)
+        return Context(self.model, self.envelope, rule_id, severity, self._cache,
+                       self.selected_options)
+
+    def option(self, rule_id: str, name: str) -> float | None:
+        """Option `name` of another rule, or None when that rule is not selected."""
+        return self.selected_options.get(rule_id, {}).get(name)
 
     # ---- shared physics
 
@@ -87,19 +95,20 @@ class Context:
 
     # ---- finding helpers
 
-    def not_applicable(self, subject: str, requirement: str, why: str) -> Finding:
+    def not_applicable(self, subject: str, requirement: str, why: str,
+                       details: dict | None = None) -> Finding:
         return Finding(self.rule_id, subject, Status.NOT_APPLICABLE, self.severity, requirement,
-                       message=why)
+                       message=why, details=dict(details or {}))
 
     def finding(self, subject: str, requirement: str, *, passed: bool, message: str,
                 measured: Quantity | None = None, limit: Quantity | None = None,
                 margin: Quantity | None = None, worst_case: dict | None = None,
-                warn: bool = False) -> Finding:
+                warn: bool = False, details: dict | None = None) -> Finding:
         """A finding whose status follows from `passed`, `warn` and the rule's severity."""
         if passed:
             status = Status.WARN if warn else Status.PASS
         else:
             status = Status.FAIL if self.severity is Severity.ERROR else Status.WARN
         return Finding(self.rule_id, subject, status, self.severity, requirement, measured, limit,
-                       margin, dict(worst_case or {}), message)
+                       margin, dict(worst_case or {}), message, details=dict(details or {}))
 

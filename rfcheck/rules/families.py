@@ -4,3 +4,4 @@ from rfcheck.rules import cutoff, exposure, line, resonance  # noqa: F401
 from rfcheck.rules import window  # noqa: F401  (window.*)
 from rfcheck.rules import magnet  # noqa: F401  (magnet.*)
 from rfcheck.rules import absorption, access, load  # noqa: F401  (access.*, load.*, absorption.*)
+from rfcheck.rules import spec_checks  # noqa: F401  (spec.*)

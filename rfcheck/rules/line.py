@@ -13,8 +13,9 @@ from rfcheck.physics.rfpower import (breakdown_field, max_forward_power, max_net
 from rfcheck.physics.waveguide import line_from_name
 
 from .context import Context
+from .load import IGNITION, RUNNING, cold_gamma, running_gamma
+from .path import NEAR_FIELD
 from .registry import Option, rule
-from .window_data import window_analysis
 
 
 @rule("line.waveguide-band", severity=Severity.ERROR,
@@ -115,9 +116,11 @@ def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
     """What it checks
     The largest electric field in the feed's rectangular guide, at the centre of the broad
     wall at a standing-wave maximum: E_pk = (1 + |Γ|) E0 at the feed's peak forward power,
-    with |Γ| the worst reflection (over f ± tolerance and thickness tolerance, as in
-    window.reflection) of the windows on that feed (0 without windows), at the frequency of
-    f ± tolerance where E0 is largest. The limit is the breakdown field of dry air at 1 atm,
+    at the frequency of f ± tolerance where E0 is largest, in both states of the load:
+    running, with |Γ| the bound of load.reflected-power (the windows' worst reflection plus
+    the plasma's returned share, all parts of the launched power); ignition, with the unlit
+    cavity's reflection (declared, else |Γ| = 1: the full standing wave, twice the
+    travelling-wave field). The limit is the breakdown field of dry air at 1 atm,
     3 MV/m, divided by safety_factor. The message gives the theoretical power capacity
     P_max of the matched guide, P_max/VSWR (largest net power with that mismatch) and the
     peak forward power the limit allows.
@@ -125,9 +128,7 @@ def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
     This is an upper bound, not a rating: it holds for a clean, dry, smooth guide at sea
     level with its field uniform over centimetre gaps. Flange gaps and misaligned joints,
     humidity, dust and swarf, burrs, altitude (lower pressure) and long pulses all lower the
-    real threshold; pressurising with dry air, N2 or SF6 raises it. The reflection of the
-    plasma load (total before ignition, when the field doubles) is not included here; the
-    load.* rules judge it. On the vacuum side of a window the limit is not air breakdown but
+    real threshold; pressurising with dry air, N2 or SF6 raises it. On the vacuum side of a window the limit is not air breakdown but
     multipactor and surface flashover, which this rule does not assess. It supports review
     and defers to the line supplier's ratings, local codes and qualified practice.
 
@@ -158,48 +159,60 @@ def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
     requirement = (f"peak field ≤ E_bd(air, 1 atm) / {safety_factor:.3g} = "
                    f"{limit / 1e6:.3g} MV/m (theoretical upper bound)")
     for feed in ctx.model.feeds:
-        subject = f"feed {feed.id}"
         line = line_from_name(feed.line)
         if line.kind != "rectangular":
             why = ("quasi-optical (free-space) feed: no guide to break down" if line.kind == "free-space"
                    else f"{line.kind} line ({line.dominant_mode}): no peak-field formula in rfcheck "
                         "yet; check against the supplier's power rating")
-            yield ctx.not_applicable(subject, requirement, why)
+            yield ctx.not_applicable(f"feed {feed.id}", requirement, why)
             continue
-        a_dim, b_dim = line.dimension("a"), line.dimension("b")
-        windows = [w for w in ctx.model.windows if w.feed == feed.id]
-        gamma, source = 0.0, "no window on the feed"
-        for w in windows:
-            g = window_analysis(ctx, w).worst_gamma[0]
-            if math.isnan(g) or g > gamma:
-                gamma, source = g, f"window {w.id}"
-            if math.isnan(g):
-                break
-        f = ctx.envelope.frequencies(feed)
-        e_pk = te10_peak_field(feed.power, a_dim, b_dim, f, gamma)
-        i = int(np.argmax(np.where(np.isnan(e_pk), np.inf, e_pk)))
-        worst_f, worst_e = float(f[i]), float(e_pk[i])
-        where = {"frequency": Quantity(worst_f, "Hz")} if f.size > 1 else {}
-        where["gamma"] = Quantity(gamma, "1")
-        if math.isnan(worst_e):
-            yield ctx.finding(subject, requirement, passed=False,
-                              message=f"peak field undefined: {line.name} does not propagate over "
-                                      f"f ± tolerance, or the window reflection is undefined "
-                                      f"(see line.waveguide-band)",
-                              measured=Quantity(None, "V/m", "no propagating TE10 wave"),
-                              limit=Quantity(limit, "V/m"), worst_case=where)
-            continue
-        p_max = float(te10_max_power(a_dim, b_dim, worst_f, e_bd))
-        p_net = float(max_net_power(p_max, gamma))
-        p_fwd = float(max_forward_power(p_max, gamma)) / safety_factor ** 2
-        margin = limit - worst_e
-        msg = (f"peak field {Quantity(worst_e, 'V/m').text()} at {_watts(feed.power)} peak "
-               f"forward power with 1 + |Γ| = {1 + gamma:.3g} ({source}) at {worst_f / 1e9:.5g} GHz, against "
-               f"{limit / 1e6:.3g} MV/m (air at 1 atm {e_bd / 1e6:.3g} MV/m / {safety_factor:.3g}); "
-               f"theoretical P_max of matched {line.name} {_watts(p_max)}, P_max/VSWR "
-               f"{_watts(p_net)} at VSWR {float(vswr(gamma)):.3g}; the limit allows "
-               f"{_watts(p_fwd)} peak forward. An upper bound: flange gaps, humidity, dust and the "
-               "load's reflection lower it")
-        yield ctx.finding(subject, requirement, passed=margin >= 0, message=msg,
-                          measured=Quantity(worst_e, "V/m"), limit=Quantity(limit, "V/m"),
-                          margin=Quantity(margin, "V/m"), worst_case=where)
+        running = running_gamma(ctx, feed)
+        if running.ret is None and feed.absorption not in NEAR_FIELD:
+            r_gamma, r_source = running.window, "windows only: no launch path for the plasma's share"
+        elif feed.absorption in NEAR_FIELD:
+            r_gamma, r_source = running.window, ("windows only: the near-field coupling's "
+                                                 "matching network is not modelled")
+        else:
+            r_gamma = running.bound
+            r_source = (f"|Γ_w| {running.window:.3g} ({', '.join(running.windows) or 'no window'}) "
+                        f"+ |Γ_p| {running.plasma:.3g} (plasma), as load.reflected-power")
+        c_gamma, c_source = cold_gamma(feed)
+        for state, gamma, source in ((RUNNING, r_gamma, r_source),
+                                     (IGNITION, c_gamma, "unlit cavity, " + c_source)):
+            yield _breakdown_state(ctx, feed, line, state, gamma, source, requirement, limit,
+                                   e_bd, safety_factor)
+
+
+def _breakdown_state(ctx, feed, line, state, gamma, source, requirement, limit, e_bd,
+                     safety_factor) -> Finding:
+    subject = f"feed {feed.id}, {state}"
+    a_dim, b_dim = line.dimension("a"), line.dimension("b")
+    f = ctx.envelope.frequencies(feed)
+    e_pk = te10_peak_field(feed.power, a_dim, b_dim, f, gamma)
+    i = int(np.argmax(np.where(np.isnan(e_pk), np.inf, e_pk)))
+    worst_f, worst_e = float(f[i]), float(e_pk[i])
+    where = {"frequency": Quantity(worst_f, "Hz")} if f.size > 1 else {}
+    where["gamma"] = Quantity(gamma, "1")
+    details = {"state": state, "gamma": gamma if math.isfinite(gamma) else None}
+    if math.isnan(worst_e):
+        return ctx.finding(subject, requirement, passed=False,
+                           message=f"peak field undefined: {line.name} does not propagate over "
+                                   f"f ± tolerance, or the window reflection is undefined "
+                                   f"(see line.waveguide-band)",
+                           measured=Quantity(None, "V/m", "no propagating TE10 wave"),
+                           limit=Quantity(limit, "V/m"), worst_case=where, details=details)
+    p_max = float(te10_max_power(a_dim, b_dim, worst_f, e_bd))
+    p_net = float(max_net_power(p_max, gamma))
+    p_fwd = float(max_forward_power(p_max, gamma)) / safety_factor ** 2
+    margin = limit - worst_e
+    msg = (f"{state}: peak field {Quantity(worst_e, 'V/m').text()} at {_watts(feed.power)} peak "
+           f"forward power with 1 + |Γ| = {1 + gamma:.3g} ({source}) at {worst_f / 1e9:.5g} GHz, "
+           f"against {limit / 1e6:.3g} MV/m (air at 1 atm {e_bd / 1e6:.3g} MV/m / "
+           f"{safety_factor:.3g}); theoretical P_max of matched {line.name} {_watts(p_max)}, "
+           + (f"P_max/VSWR {_watts(p_net)} at VSWR {float(vswr(gamma)):.3g}" if gamma < 1
+              else "no net power at full reflection")
+           + f"; the limit allows {_watts(p_fwd)} peak forward. An upper bound: flange gaps, "
+             "humidity and dust lower it")
+    return ctx.finding(subject, requirement, passed=margin >= 0, message=msg,
+                       measured=Quantity(worst_e, "V/m"), limit=Quantity(limit, "V/m"),
+                       margin=Quantity(margin, "V/m"), worst_case=where, details=details)

@@ -1,124 +1,227 @@
-"""The plasma as a load: its 1-D full-wave reflection, and the total reflected power at the
-generator (window and plasma combined) against the feed's rating."""
+"""The plasma as a load, in its two states: running (the plasma's 1-D full-wave reflection
+per part of the launched power, the far end included, and the total reflected power at the
+generator, window and plasma combined) and ignition (no plasma: the generator looks into the
+unlit cavity)."""
 
 from __future__ import annotations
 
 import math
 from collections.abc import Iterator
+from dataclasses import dataclass
 
 from rfcheck.findings import Finding, Quantity, Severity
+from rfcheck.model import REFLECTING_WALLS, Feed
+from rfcheck.units import format_fraction as _pct
 
 from .context import Context
-from .path import NEAR_FIELD, LaunchPath, launch_path
+from .parts import ModeContent, mode_content, worst_split
+from .path import NEAR_FIELD, Corner, launch_path
 from .registry import Option, rule
 from .window_data import window_analysis
 
+__all__ = ["PlasmaReturn", "plasma_return", "running_gamma", "cold_gamma", "RUNNING", "IGNITION"]
+
 _BALANCE_CAUTION = 1e-3
+RUNNING = "running"
+IGNITION = "ignition"
 
 
-def _pct(x: float) -> str:
-    return f"{x:.3g}" if x < 1e-3 else f"{x:.2%}"
+@dataclass(frozen=True)
+class PlasmaReturn:
+    """The feed's power returned by the plasma at the worst envelope corner.
+
+    returned: Σ f_i returned_i at the worst corner and the worst candidate split;
+    split: that split {mode: fraction}; corner: the corner; parts: {mode: PlasmaLoad}."""
+
+    returned: float
+    split: dict
+    corner: Corner
+    parts: dict
+    content: ModeContent
+
+    def part_text(self, mode: str) -> str:
+        load = self.parts[mode]
+        share = self.split.get(mode, 0.0)
+        first = load.first
+        tail = "" if abs(first.balance_residual) <= _BALANCE_CAUTION else \
+            f", energy balance residual {first.balance_residual:.2g}: treat with caution"
+        return (f"{mode} part ({_pct(share)}) returns {_pct(load.returned)} of its power "
+                f"(first pass: reflected {_pct(first.reflected)}, absorbed "
+                f"{_pct(first.absorbed)}, to the far end {_pct(first.transmitted)}{tail})")
+
+    def details(self) -> dict:
+        return {"state": RUNNING, "polarisation": self.content.summary(),
+                "parts": [{"part": m, "fraction": self.split.get(m, 0.0),
+                           "returned": ld.returned, "absorbed": ld.absorbed,
+                           "escaped": ld.escaped, "far_end": ld.wall,
+                           "far_end_declared": ld.declared,
+                           "first_pass": {"reflected": ld.first.reflected,
+                                          "transmitted": ld.first.transmitted,
+                                          "absorbed": ld.first.absorbed}}
+                          for m, ld in self.parts.items()]}
 
 
-def plasma_reflection_worst(path: LaunchPath):
-    """(corner, SlabResponse) of the largest reflected fraction over the envelope corners."""
-    worst = None
-    for corner in path.corners():
-        wave = path.wave(corner)
-        if worst is None or wave.reflected > worst[1].reflected:
-            worst = (corner, wave)
-    return worst
+def plasma_return(ctx: Context, feed: Feed) -> PlasmaReturn | None:
+    """The worst returned power fraction of `feed` over the envelope corners (cached), None
+    for feeds without launched parts (near field, no path)."""
+    key = ("plasma-return", feed.id)
+    if key not in ctx._cache:
+        content = mode_content(ctx, feed)
+        out = None
+        if content.parts:
+            paths = {p.mode: launch_path(ctx, feed, p.mode) for p in content.parts}
+            first = paths[content.parts[0].mode]
+            for corner in first.corners():
+                loads = {m: path.load(corner) for m, path in paths.items()}
+                total, split = worst_split(content, corner,
+                                           {m: ld.returned for m, ld in loads.items()}, "max")
+                if out is None or total > out.returned:
+                    out = PlasmaReturn(total, split, corner, loads, content)
+        ctx._cache[key] = out
+    return ctx._cache[key]
 
 
-def _model_note(path: LaunchPath) -> str:
-    if path.theta is None:
+def _wall_note(ret: PlasmaReturn, ctx: Context, feed: Feed) -> str:
+    path = launch_path(ctx, feed, ret.content.parts[0].mode)
+    note = path.wall_text()
+    if path.wall in REFLECTING_WALLS:
+        note += ("; what reaches it comes back through the plasma, at the worst round-trip "
+                 "phase between plasma and wall (a bound: the distance in wavelengths is not "
+                 "known)")
+    return note
+
+
+def _model_note(ctx: Context, feed: Feed) -> str:
+    if launch_path(ctx, feed).theta is None:
         return ""
-    return (" (declared oblique launch: the scalar wave equation with the branch's n² is an "
+    return (" (declared oblique launch: the scalar wave equation with each branch's n² is an "
             "estimate without mode coupling)")
 
 
 @rule("load.plasma-reflection", severity=Severity.ERROR,
-      summary="The fraction of the launched power the plasma reflects (1-D full wave along the "
-              "launch path) stays under the limit.",
+      summary="The fraction of the launched power the plasma returns towards the launcher (1-D "
+              "full wave per part of the power, far end included) stays under the limit.",
       options={"max_reflected_fraction": Option(
-          "ratio", "highest allowed reflected power fraction |Γ_p|² of the plasma")},
+          "ratio", "highest allowed fraction |Γ_p|² of the launched power the plasma returns")},
       applies="every feed except inductive and helicon coupling (near field)")
 def plasma_reflection(ctx: Context, *, max_reflected_fraction: float) -> Iterator[Finding]:
     """What it checks
-    The reflected, transmitted and absorbed fractions of a plane wave launched from vacuum
-    at the launcher into the plasma along the launch path (the chamber axis to its far
-    end), from the 1-D full-wave solution of the stratified problem with the collisional
-    n²(z) of the launched mode: R and L along B, O and X across B are exact in this scalar
-    form; a declared oblique angle uses the branch's n² at that angle (an estimate without
-    mode coupling). Collisions ν = ν_en + ν_ei enter as ω → ω + iν. Evaluated at the envelope
-    corners (density min/max × current scale min/max × frequency min/max, each with the
-    electron temperature of least collisional damping); the largest reflected fraction is
-    reported with the energy balance R + T + A = 1 of that solution.
+    The fraction of the feed's launched power that the plasma sends back towards the
+    launcher in the running state, summed over the parts of the launched power (its split
+    into the plasma's characteristic waves: R and L along B, O and X across B; see
+    cutoff.o-mode and the mode content in the report). Each part travels its own path (the
+    chamber axis from the launcher to the far end) and is solved as a 1-D full wave with
+    its collisional n²(z), incident from vacuum: reflected, absorbed and transmitted to the
+    far end. The far end is what the spec declares for that end of the chamber: a metal
+    wall, electrode or substrate reflects (not declared: a metal wall, the conservative
+    choice), so what crosses the plasma comes back through it — at the worst round-trip
+    phase between the plasma and the wall, since the distance in wavelengths is not known
+    — while a dump or an open end lets it go. Returned power of the feed = Σ f_i R_i over
+    the parts (the parts are orthogonal waves: their powers add), at the worst candidate
+    split where the polarisation leaves it open, at the worst envelope corner (density
+    min/max × current scale min/max × frequency min/max, each with the electron temperature
+    and neutral pressure of least collisional damping).
 
     Why it matters
-    What the plasma reflects returns to the generator together with the window's
-    reflection (see load.reflected-power); a cutoff in front of the resonance reflects most
-    of the power. The model is single pass: power transmitted beyond the far end of the
-    chamber is counted as transmitted, not as returned, although a metal end wall sends it
-    back; cavity multi-pass is not modelled.
+    What returns goes to the generator together with the window's reflection (see
+    load.reflected-power). A cutoff in front of the resonance reflects a part; a part with
+    no resonance (the L half of a linearly polarised launch along B into an ECR source)
+    crosses the plasma nearly unabsorbed and comes back from the end wall.
 
     Equation
-    E'' + k0² n²(z) E = 0 integrated by a fourth-order Magnus method with refinement at the
-    resonances; R = |r|², absorbed A = k0 ∫ Im n² |E|² dz / flux. Checked against the
-    Fabry–Perot slab and the Budden tunnelling problem (T = e^(−πη), R = (1 − T)² from the
-    cutoff side, R = 0 from the resonance side).
+    E'' + k0² n²(z) E = 0 by a fourth-order Magnus method with refinement at the
+    resonances; R = |r|², A = k0 ∫ Im n² |E|² dz / flux. Behind a reflecting wall the
+    returned amplitude r_tot = s11 + s12 s21 u/(1 − s22 u), |u| = 1, traces a circle; the
+    worst case is |centre| + radius (checked against the Salisbury screen). Checked against
+    the Fabry–Perot slab and the Budden tunnelling problem.
 
     Options
     max_reflected_fraction: default 10 % (|Γ_p| = 0.32, common practice).
 
+    Assumptions
+    1-D along the axis: the wall returns the wave into the same path and polarisation (a
+    metal wall at normal incidence keeps the rotation sense about B), no conversion between
+    the parts, no depolarisation by the cavity's other walls; multi-mode cavity effects are
+    not modelled. These make the figure an upper bound for a well-declared far end.
+
     References
     K. G. Budden, The Propagation of Radio Waves (Cambridge 1985), ch. 7, 15–19; T. H. Stix,
-    Waves in Plasmas (AIP 1992), ch. 1 and 13.
+    Waves in Plasmas (AIP 1992), ch. 1 and 13; D. M. Pozar, Microwave Engineering, 4th ed.
+    (Wiley 2012), ch. 4 (scattering matrices).
     """
     for feed in ctx.model.feeds:
-        subject = f"feed {feed.id}"
-        requirement = f"|Γ_p|² ≤ {max_reflected_fraction:.0%}"
+        subject = f"feed {feed.id}, {RUNNING}"
+        requirement = f"|Γ_p|² ≤ {max_reflected_fraction:.0%} of the launched power"
         if feed.absorption in NEAR_FIELD:
             yield ctx.not_applicable(subject, requirement,
                                      f"{feed.absorption} coupling loads the generator through its "
                                      "antenna and matching network, not as a launched plane wave")
             continue
-        path = launch_path(ctx, feed)
-        if path.problem:
-            yield ctx.not_applicable(subject, requirement, path.problem)
+        ret = plasma_return(ctx, feed)
+        if ret is None:
+            yield ctx.not_applicable(subject, requirement, mode_content(ctx, feed).reason)
             continue
-        corner, wave = plasma_reflection_worst(path)
-        margin = max_reflected_fraction - wave.reflected
+        margin = max_reflected_fraction - ret.returned
         passed = margin >= 0
-        msg = (f"the plasma reflects {_pct(wave.reflected)} of the {path.label} "
-               f"(|Γ_p| = {math.sqrt(wave.reflected):.3g}); absorbed {_pct(wave.absorbed)}, "
-               f"transmitted past the far end {_pct(wave.transmitted)}"
-               f"{_model_note(path)}")
-        if abs(wave.balance_residual) > _BALANCE_CAUTION:
-            msg += f"; energy balance residual {wave.balance_residual:.2g}: treat with caution"
+        parts = "; ".join(ret.part_text(m) for m in ret.parts if ret.split.get(m, 0.0) > 0)
+        msg = (f"the plasma returns {_pct(ret.returned)} of the launched power "
+               f"(|Γ_p| = {math.sqrt(ret.returned):.3g}): {parts}; "
+               f"{ret.content.summary()}; {_wall_note(ret, ctx, feed)}{_model_note(ctx, feed)}")
         if not passed:
             msg += f"; above the {max_reflected_fraction:.0%} limit"
+        path = launch_path(ctx, feed, ret.content.parts[0].mode)
         yield ctx.finding(subject, requirement, passed=passed, message=msg,
-                          measured=Quantity(wave.reflected, "1"),
+                          measured=Quantity(ret.returned, "1"),
                           limit=Quantity(max_reflected_fraction, "1"),
                           margin=Quantity(margin, "1"),
-                          worst_case=path.worst_case(corner, temperature=True))
+                          worst_case=path.worst_case(ret.corner, temperature=True),
+                          details=ret.details())
+
+
+@dataclass(frozen=True)
+class RunningGamma:
+    window: float  # |Γ_w|, sum over the feed's windows
+    plasma: float  # |Γ_p| = √(returned fraction)
+    bound: float  # min(1, |Γ_w| + |Γ_p|)
+    windows: tuple[str, ...]
+    ret: PlasmaReturn | None
+
+
+def running_gamma(ctx: Context, feed: Feed) -> RunningGamma:
+    """The running state's bound |Γ_total| ≤ |Γ_w| + |Γ_p| (amplitudes at their own worst
+    points; NaN when a window's reflection is undefined)."""
+    windows = [w for w in ctx.model.windows if w.feed == feed.id]
+    g_w = sum(window_analysis(ctx, w).worst_gamma[0] for w in windows)
+    ret = plasma_return(ctx, feed) if feed.absorption not in NEAR_FIELD else None
+    g_p = math.sqrt(ret.returned) if ret is not None else 0.0
+    bound = min(1.0, g_w + g_p) if math.isfinite(g_w) else math.nan
+    return RunningGamma(g_w, g_p, bound, tuple(w.id for w in windows), ret)
+
+
+def cold_gamma(feed: Feed) -> tuple[float, str]:
+    """|Γ| of the unlit cavity seen by the generator and where it comes from."""
+    if feed.cold_cavity_gamma is not None:
+        return feed.cold_cavity_gamma, f"|Γ_cold| = {feed.cold_cavity_gamma:.3g} (declared)"
+    return 1.0, ("|Γ_cold| = 1 (the cold cavity's reflection is not declared: the worst case, "
+                 "a cavity that returns all the power)")
 
 
 @rule("load.reflected-power", severity=Severity.ERROR,
-      summary="Window and plasma reflection together, as a bounded worst case, stay within the "
-              "reflected power the generator tolerates.",
+      summary="Running state: window and plasma reflection together, as a bounded worst case, "
+              "stay within the reflected power the generator tolerates.",
       options={"max_fraction": Option(
           "ratio", "allowed share of the feed's max_reflected_power")},
       applies="feeds that give max_reflected_power, except inductive and helicon coupling")
 def reflected_power(ctx: Context, *, max_fraction: float) -> Iterator[Finding]:
     """What it checks
-    The reflected power at the feed's peak forward power from the windows of the feed and
-    the plasma together, P_r = P · |Γ_total|², with the amplitude bound
-    |Γ_total| ≤ |Γ_w| + |Γ_p| (capped at 1), against the feed's max_reflected_power.
-    |Γ_w| is each window's worst reflection over f ± tolerance and its thickness tolerance
-    (window.reflection; several windows add), |Γ_p| = √R_p the plasma's worst reflection
-    over the envelope corners (load.plasma-reflection).
+    In the running state, the reflected power at the feed's peak forward power from the
+    windows of the feed and the plasma together, P_r = P · |Γ_total|², with the amplitude
+    bound |Γ_total| ≤ |Γ_w| + |Γ_p| (capped at 1), against the feed's max_reflected_power.
+    |Γ_w| is each window's worst reflection over f ± tolerance and its spreads
+    (window.reflection; several windows add), |Γ_p|² the plasma's returned fraction of the
+    launched power, summed over its parts, far end included, at the worst envelope corner
+    (load.plasma-reflection). The ignition state (no plasma) is judged by
+    load.ignition-reflection.
 
     Why it matters
     The circulator load or the generator must absorb what comes back; a magnetron pulled by
@@ -141,7 +244,7 @@ def reflected_power(ctx: Context, *, max_fraction: float) -> Iterator[Finding]:
     common practice for the VSWR product bound.
     """
     for feed in ctx.model.feeds:
-        subject = f"feed {feed.id}"
+        subject = f"feed {feed.id}, {RUNNING}"
         requirement = "P (|Γ_w| + |Γ_p|)² ≤ max_reflected_power" + (
             f" × {max_fraction:.0%}" if max_fraction != 1 else "")
         if feed.max_reflected_power is None:
@@ -153,30 +256,106 @@ def reflected_power(ctx: Context, *, max_fraction: float) -> Iterator[Finding]:
                                      f"{feed.absorption} coupling: the plasma's load is set by "
                                      "the antenna and its matching network (not modelled)")
             continue
-        path = launch_path(ctx, feed)
-        if path.problem:
-            yield ctx.not_applicable(subject, requirement, path.problem)
+        g = running_gamma(ctx, feed)
+        if g.ret is None:
+            yield ctx.not_applicable(subject, requirement, mode_content(ctx, feed).reason)
             continue
-        windows = [w for w in ctx.model.windows if w.feed == feed.id]
-        g_w = sum(window_analysis(ctx, w).worst_gamma[0] for w in windows)
-        corner, wave = plasma_reflection_worst(path)
-        g_p = math.sqrt(wave.reflected)
         limit = max_fraction * feed.max_reflected_power
-        if not math.isfinite(g_w):
+        if not math.isfinite(g.window):
             yield ctx.finding(subject, requirement, passed=False,
                               message="a window's reflection is undefined: the line does not "
                                       "propagate over f ± tolerance (see line.waveguide-band)",
-                              limit=Quantity(limit, "W"))
+                              limit=Quantity(limit, "W"), details={"state": RUNNING})
             continue
-        bound = min(1.0, g_w + g_p)
-        p_r = feed.power * bound**2
+        p_r = feed.power * g.bound**2
         margin = limit - p_r
-        w_text = (f"|Γ_w| = {g_w:.3g} ({', '.join(w.id for w in windows)})" if windows
+        w_text = (f"|Γ_w| = {g.window:.3g} ({', '.join(g.windows)})" if g.windows
                   else "no window (|Γ_w| = 0)")
-        msg = (f"{w_text} + |Γ_p| = {g_p:.3g} (plasma) bound |Γ_total| ≤ {bound:.3g}: up to "
-               f"{Quantity(p_r, 'W').text()} reflected at {Quantity(feed.power, 'W').text()} "
-               f"peak forward power, against {Quantity(limit, 'W').text()}")
-        where = path.worst_case(corner, temperature=True)
+        msg = (f"{w_text} + |Γ_p| = {g.plasma:.3g} (plasma, all parts of the launched power) "
+               f"bound |Γ_total| ≤ {g.bound:.3g}: up to {Quantity(p_r, 'W').text()} reflected at "
+               f"{Quantity(feed.power, 'W').text()} peak forward power, against "
+               f"{Quantity(limit, 'W').text()}")
+        path = launch_path(ctx, feed, g.ret.content.parts[0].mode)
+        details = g.ret.details()
+        details.update({"gamma_window": g.window, "gamma_plasma": g.plasma,
+                        "gamma_bound": g.bound})
         yield ctx.finding(subject, requirement, passed=margin >= 0, message=msg,
                           measured=Quantity(p_r, "W"), limit=Quantity(limit, "W"),
-                          margin=Quantity(margin, "W"), worst_case=where)
+                          margin=Quantity(margin, "W"),
+                          worst_case=path.worst_case(g.ret.corner, temperature=True),
+                          details=details)
+
+
+@rule("load.ignition-reflection", severity=Severity.ERROR,
+      summary="Ignition state: the power the unlit cavity reflects stays within the generator's "
+              "or circulator load's rating for the time it lasts.",
+      options={"max_fraction": Option(
+          "ratio", "allowed share of the applicable reflected-power rating")},
+      applies="every feed that gives a reflected-power rating (continuous or time-limited)")
+def ignition_reflection(ctx: Context, *, max_fraction: float) -> Iterator[Finding]:
+    """What it checks
+    Before breakdown, and whenever the plasma goes out, the generator looks into the empty
+    cavity: the reflected power is P · |Γ_cold|² at the feed's peak forward power, with the
+    cold cavity's reflection as the spec declares it (|Γ| or VSWR, measured on the unlit
+    source) or, not declared, |Γ_cold| = 1 (the worst case: an unlit cavity can return all
+    the power). It lasts the declared ignition time; not declared, it is taken as
+    continuous (the plasma can go out and the generator keep running into the empty cavity
+    until an interlock trips). The limit is the feed's time-limited rating
+    (max_reflected_power_short) when one is declared and lasts at least the ignition time,
+    else its continuous max_reflected_power.
+
+    Why it matters
+    A circulator load or magnetron rated for the running reflection is destroyed by full
+    reflection at ignition or after a plasma drop-out; the rating must cover the ignition
+    state for as long as it lasts (or an interlock must end it sooner).
+
+    Equation
+    P_r = P |Γ_cold|²; |Γ| = (VSWR − 1)/(VSWR + 1).
+
+    Options
+    max_fraction: share of the applicable rating allowed (default 100 %).
+
+    References
+    D. M. Pozar, Microwave Engineering, 4th ed. (Wiley 2012), ch. 2; common practice: size
+    the circulator load for the full forward power unless an interlock limits the time of a
+    full reflection.
+    """
+    for feed in ctx.model.feeds:
+        subject = f"feed {feed.id}, {IGNITION}"
+        requirement = "P |Γ_cold|² ≤ the reflected-power rating for the ignition time" + (
+            f" × {max_fraction:.0%}" if max_fraction != 1 else "")
+        gamma, g_text = cold_gamma(feed)
+        duration = feed.ignition_time
+        short = feed.short_rating
+        if short is not None and duration is not None and duration <= short.duration:
+            rating, r_text = short.power, (f"the time-limited rating {Quantity(short.power, 'W').text()} "
+                                           f"for {short.duration:.3g} s")
+        elif feed.max_reflected_power is not None:
+            rating, r_text = feed.max_reflected_power, (
+                f"the continuous rating {Quantity(feed.max_reflected_power, 'W').text()}")
+            if short is not None:
+                r_text += (f" (the time-limited rating lasts {short.duration:.3g} s, "
+                           + ("less than the ignition time" if duration is not None else
+                              "but the ignition time is not declared") + ")")
+        else:
+            yield ctx.not_applicable(subject, requirement,
+                                     "the feed gives no reflected-power rating (max_reflected_power "
+                                     "or max_reflected_power_short)", {"state": IGNITION})
+            continue
+        t_text = (f"for an ignition time of {duration:.3g} s" if duration is not None
+                  else "for an ignition time not declared (taken as continuous)")
+        limit = max_fraction * rating
+        p_r = feed.power * gamma**2
+        margin = limit - p_r
+        msg = (f"before breakdown the generator sees the unlit cavity, {g_text}: "
+               f"{Quantity(p_r, 'W').text()} reflected at {Quantity(feed.power, 'W').text()} peak "
+               f"forward power {t_text}, against {r_text}")
+        if margin < 0:
+            msg += ("; size the circulator load for this reflection, declare a measured cold-"
+                    "cavity reflection, or declare the interlock time and a time-limited rating")
+        yield ctx.finding(subject, requirement, passed=margin >= 0, message=msg,
+                          measured=Quantity(p_r, "W"), limit=Quantity(limit, "W"),
+                          margin=Quantity(margin, "W"),
+                          details={"state": IGNITION, "gamma_cold": gamma,
+                                   "gamma_cold_declared": feed.cold_cavity_gamma is not None,
+                                   "ignition_time": duration})

@@ -1,5 +1,7 @@
-"""The launch path of each feed, shared by the access.*, load.* and absorption.* rules, the
-characteristics and the report figures; built once per feed and cached on the Context.
+"""The launch path of each part of a feed's launched power (its split into the plasma's
+characteristic waves, rfcheck.rules.parts), shared by the cutoff, access.*, load.* and
+absorption.* rules, the characteristics and the report figures; built once per feed and part
+and cached on the Context.
 
 Geometry: the path runs on the chamber axis from the launcher (its position clipped into the
 chamber: the plasma starts at the chamber wall) in the launch direction to the far end of the
@@ -17,16 +19,23 @@ Along the path:
   (:func:`rfcheck.physics.collisions.electron_neutral_collision_frequency`, cross section
   at E = T_e) and electron–ion (Braginskii, Z_eff = Σ fraction · Z).
 
-The launched wave is the spec's mode at its angle to B: the R and L waves along B at 0°,
-the O and X modes across B at 90° (the closed forms n² = R, L, P, RL/S), any other angle
-the named branch of the cold dispersion relation at that angle, held fixed along the path.
+Each path carries one wave at the launch angle: the R and L waves along B at 0°, the O and
+X modes across B at 90° (the closed forms n² = R, L, P, RL/S), any other angle the named
+branch of the cold dispersion relation at that angle, held fixed along the path.
+
+The far end of the path is the chamber end the spec declares (``chamber.end_walls``): a metal
+wall, electrode or substrate reflects (not declared: metal, the conservative choice), a dump
+or an open end lets the wave go. The single-pass solution leaves into vacuum in front of a
+wall or dump (the profile's end value continued at an open end); behind a reflecting wall the
+returned power is the worst over the unknown round-trip phase
+(:func:`rfcheck.physics.fullwave.mirror_return`).
 
 Envelope: the accessibility and full-wave solutions are one-dimensional problems for one
 profile, so they are evaluated at the envelope corners, not over the whole grid: density
-min/max × current scale min/max × frequency min/max (8 profiles at most per feed). At
-each corner the full-wave n² takes the electron temperature (min or max) that gives the
-smaller collision frequency at the peak density: the least collisional damping, which in
-general reflects the most. Rules that need no profile solution (optical depth, ν/ω) are
+min/max × current scale min/max × frequency min/max (8 profiles at most per feed and part).
+At each corner the full-wave n² takes the electron temperature (min or max) and the neutral
+pressure (min or max) that give the smallest collision frequency at the peak density: the
+least collisional damping, which in general reflects the most. Rules that need no profile solution (optical depth, ν/ω) are
 vectorised over the whole envelope grid instead.
 """
 
@@ -39,17 +48,18 @@ from typing import NamedTuple
 import numpy as np
 
 from rfcheck.findings import Quantity
-from rfcheck.model import Chamber, DensityProfile, Feed, Plasma
+from rfcheck.model import REFLECTING_WALLS, Chamber, DensityProfile, Feed, Plasma
 from rfcheck.physics.access import PathAccess, launch_path_access, mode_n2
 from rfcheck.physics.collisions import (electron_ion_collision_frequency,
                                         electron_neutral_collision_frequency, known_gases)
 from rfcheck.physics.constants import TWO_PI
-from rfcheck.physics.frequencies import ecr_field
-from rfcheck.physics.fullwave import SlabResponse, slab_reflection
+from rfcheck.physics.frequencies import critical_density, ecr_field
+from rfcheck.physics.fullwave import SlabResponse, mirror_return, slab_reflection
 from rfcheck.physics.species import ELECTRON, ion_mixture
 
-__all__ = ["PATH_POINTS", "NU_FLOOR", "NEAR_FIELD", "Corner", "Reach", "LaunchPath",
-           "launch_path", "profile_shape", "collision_frequency", "launched_wave"]
+__all__ = ["PATH_POINTS", "NU_FLOOR", "NEAR_FIELD", "Corner", "Reach", "PlasmaLoad",
+           "LaunchPath", "launch_path", "profile_shape", "collision_frequency", "launched_wave",
+           "wave_label", "far_wall"]
 
 #: relative tolerance of the full-wave profile refinement (rfcheck.physics.fullwave)
 WAVE_RTOL = 1e-3
@@ -65,19 +75,28 @@ _ANGLE_TOL = 1e-9
 HARMONIC_2 = "2nd-harmonic ECR"
 
 
-def launched_wave(feed: Feed) -> tuple[str, float | None]:
+def launched_wave(feed: Feed, mode: str | None = None) -> tuple[str, float | None]:
     """(mode, θ) for :func:`rfcheck.physics.access.mode_n2`: θ None for R, L at 0° and
-    O, X at 90° (the exact closed forms), the declared angle to B otherwise."""
-    mode, angle = feed.launch.mode.upper(), float(feed.launch.angle_to_field)
+    O, X at 90° (the exact closed forms), the declared angle to B otherwise. `mode` is one
+    part of the launched power (default: the feed's intended mode)."""
+    mode = (mode or feed.launch.mode).upper()
+    angle = float(feed.launch.angle_to_field)
     pure = 0.0 if mode in ("R", "L") else math.pi / 2
     return mode, (None if abs(angle - pure) < _ANGLE_TOL else angle)
 
 
-def wave_label(feed: Feed) -> str:
-    mode, theta = launched_wave(feed)
+def wave_label(feed: Feed, mode: str | None = None) -> str:
+    mode, theta = launched_wave(feed, mode)
     if theta is None:
         return f"{mode} wave along B" if mode in ("R", "L") else f"{mode} mode across B"
     return f"{mode} branch at {math.degrees(theta):.3g}° to B"
+
+
+def far_wall(chamber: Chamber, direction: int) -> tuple[str, bool]:
+    """(the far end's kind, whether the spec declares it) for a path running in `direction`;
+    an undeclared end is a reflecting metal wall (the conservative choice)."""
+    declared = chamber.end_wall if direction > 0 else chamber.start_wall
+    return (declared or "metal"), declared is not None
 
 
 def profile_shape(profile: DensityProfile, chamber: Chamber, z) -> np.ndarray:
@@ -108,8 +127,9 @@ def _profile_knots(profile: DensityProfile, chamber: Chamber) -> list[float]:
     return []
 
 
-def collision_frequency(plasma: Plasma, n_e, t_e) -> np.ndarray:
-    """ν = ν_en + ν_ei (s^-1) at electron densities n_e (m^-3) and temperature t_e (eV).
+def collision_frequency(plasma: Plasma, n_e, t_e, pressure=None) -> np.ndarray:
+    """ν = ν_en + ν_ei (s^-1) at electron densities n_e (m^-3), temperature t_e (eV) and
+    neutral pressure (Pa; default the lowest of the envelope).
 
     ν_en from the neutral gas when the spec gives one and its cross section is tabulated
     (else 0); ν_ei with Z_eff = Σ fraction_s Z_s (zero where n_e = 0).
@@ -122,7 +142,8 @@ def collision_frequency(plasma: Plasma, n_e, t_e) -> np.ndarray:
                       0.0)
     gas = plasma.neutral
     if gas is not None and gas.species in known_gases():
-        nu = nu + electron_neutral_collision_frequency(gas.species, gas.pressure, t_e,
+        p_gas = gas.pressure.min if pressure is None else np.asarray(pressure, dtype=float)
+        nu = nu + electron_neutral_collision_frequency(gas.species, p_gas, t_e,
                                                        gas.temperature)
     return nu
 
@@ -130,13 +151,33 @@ def collision_frequency(plasma: Plasma, n_e, t_e) -> np.ndarray:
 @dataclass(frozen=True)
 class Corner:
     """One envelope corner: peak density (m^-3), current scale, frequency (Hz), the electron
-    temperature (eV) used for collisions, and the indices (density, scale, frequency)."""
+    temperature (eV) and neutral pressure (Pa; NaN without a neutral gas) used for
+    collisions, and the indices (density, scale, frequency)."""
 
     density: float
     scale: float
     frequency: float
     electron_temperature: float
     index: tuple[int, int, int]
+    pressure: float = math.nan
+
+
+class PlasmaLoad(NamedTuple):
+    """Where one part's power goes at one corner, seen from the launcher.
+
+    returned: fraction that comes back towards the launcher (the plasma's reflection plus,
+    behind a reflecting far end, what the wall sends back through the plasma, at the worst
+    round-trip phase); escaped: fraction that leaves through an absorbing or open far end;
+    absorbed: the rest (absorbed in the plasma, every pass); first: the single-pass
+    solution (reflected, transmitted to the far end, absorbed, residual); wall: the far end's
+    kind; declared: whether the spec declares it."""
+
+    returned: float
+    escaped: float
+    absorbed: float
+    first: SlabResponse
+    wall: str
+    declared: bool
 
 
 class Reach(NamedTuple):
@@ -156,9 +197,10 @@ class Reach(NamedTuple):
 
 
 class LaunchPath:
-    """The launch path of one feed with its per-corner solutions (computed on demand, cached)."""
+    """The launch path of one part (mode) of a feed's power with its per-corner solutions
+    (computed on demand, cached)."""
 
-    def __init__(self, ctx, feed: Feed):
+    def __init__(self, ctx, feed: Feed, mode: str | None = None):
         model, env = ctx.model, ctx.envelope
         chamber, plasma = model.chamber, model.plasma
         self.feed, self.plasma, self.chamber = feed, plasma, chamber
@@ -166,8 +208,12 @@ class LaunchPath:
         self.z0 = min(max(feed.launch.z, chamber.z_start), chamber.z_end)
         far = chamber.z_end if self.direction > 0 else chamber.z_start
         self.length = abs(far - self.z0)
-        self.mode, self.theta = launched_wave(feed)
-        self.label = wave_label(feed)
+        self.mode, self.theta = launched_wave(feed, mode)
+        self.label = wave_label(feed, mode)
+        self.wall, self.wall_declared = far_wall(chamber, self.direction)
+        gas = plasma.neutral
+        self.pressures = (np.unique([gas.pressure.min, gas.pressure.max]) if gas is not None
+                          else np.array([math.nan]))
         self.densities = np.asarray(env.density, dtype=float)
         self.scales = np.asarray(env.current_scale, dtype=float)
         self.frequencies = np.asarray(env.frequencies(feed), dtype=float)
@@ -192,6 +238,7 @@ class LaunchPath:
         self._access: dict = {}
         self._reach: dict = {}
         self._wave: dict = {}
+        self._load: dict = {}
 
     # ---- positions
 
@@ -218,12 +265,15 @@ class LaunchPath:
         out = []
         for i in di:
             n = float(self.densities[i])
-            nus = collision_frequency(self.plasma, n, self.temperatures)
-            t_e = float(self.temperatures[int(np.argmin(nus))])
+            t_grid, p_grid = np.meshgrid(self.temperatures, self.pressures, indexing="ij")
+            p_arg = None if self.plasma.neutral is None else p_grid
+            nus = collision_frequency(self.plasma, n, t_grid, p_arg)
+            a, b = np.unravel_index(int(np.argmin(nus)), t_grid.shape)
+            t_e, p_gas = float(t_grid[a, b]), float(p_grid[a, b])
             for j in si:
                 for k in fi:
                     out.append(Corner(n, float(self.scales[j]), float(self.frequencies[k]),
-                                      t_e, (i, j, k)))
+                                      t_e, (i, j, k), p_gas))
         return out
 
     def worst_case(self, corner: Corner, temperature: bool = False) -> dict[str, Quantity]:
@@ -237,6 +287,8 @@ class LaunchPath:
             out["frequency"] = Quantity(corner.frequency, "Hz")
         if temperature and self.temperatures.size > 1:
             out["electron_temperature"] = Quantity(corner.electron_temperature, "eV")
+        if temperature and self.pressures.size > 1:
+            out["neutral_pressure"] = Quantity(corner.pressure, "Pa")
         return out
 
     # ---- profiles at a corner
@@ -250,8 +302,9 @@ class LaunchPath:
     def nu(self, corner: Corner, n_e) -> np.ndarray:
         """Collision frequency with the NU_FLOOR of the full-wave n² (s^-1)."""
         floor = NU_FLOOR * TWO_PI * corner.frequency
-        return np.maximum(collision_frequency(self.plasma, n_e, corner.electron_temperature),
-                          floor)
+        p_gas = None if math.isnan(corner.pressure) else corner.pressure
+        return np.maximum(collision_frequency(self.plasma, n_e, corner.electron_temperature,
+                                              p_gas), floor)
 
     def n2(self, corner: Corner, s=None, collisions: bool = True) -> np.ndarray:
         """n² of the launched wave at distances s (default: the path samples)."""
@@ -264,6 +317,35 @@ class LaunchPath:
             ne = corner.density * profile_shape(self.plasma.profile, self.chamber, self.z_at(s))
         nu = {ELECTRON.name: self.nu(corner, ne)} if collisions else 0.0
         return mode_n2(corner.frequency, bq, ne, self.mode, self.theta, self.plasma.ions, nu)
+
+    def cutoff_ratio(self, corner: Corner) -> float:
+        """Largest n_e / n_cut along the path at a corner: n_cut = n_c (P = 0) for every
+        mode but L, n_c (1 + Y) for the L wave (L = 0); electrons, as the landmarks."""
+        if self.s.size == 0:
+            return math.nan
+        x = self.n_e(corner) / float(critical_density(corner.frequency))
+        if self.mode == "L":
+            x = x / (1.0 + self.b_of(corner) / float(ecr_field(corner.frequency)))
+        return float(np.max(x))
+
+    def above_cutoff(self, corner: Corner) -> bool:
+        """Whether the density exceeds the mode's cutoff density somewhere on the path (for
+        R, O and X: n_c, i.e. the plasma is overdense)."""
+        return self.cutoff_ratio(corner) > 1.0
+
+    def first_cutoff_text(self, *_args) -> str:
+        """Where the first cutoff meets this part at the corner of highest cutoff ratio, in
+        words (" at z = … mm (the L cutoff)"), or "" when the access solution finds none."""
+        if self.s.size == 0:
+            return ""
+        corner = max(self.corners(), key=self.cutoff_ratio)
+        acc = self.access(corner)
+        if not math.isfinite(acc.first_cutoff_z) or not acc.first_cutoff:
+            return ""
+        name = acc.first_cutoff
+        where = ("from the launcher on" if name == "launcher"
+                 else f"at z = {acc.first_cutoff_z * 1e3:.4g} mm (the {name})")
+        return f", evanescent {where}"
 
     # ---- solutions (cached per corner)
 
@@ -318,15 +400,47 @@ class LaunchPath:
                      r.cutoff_s, r.width)
 
     def wave(self, corner: Corner) -> SlabResponse:
-        """1-D full-wave reflection, transmission and absorption of the collisional n²(s),
-        incident from vacuum at the launcher, leaving into the profile's far-end value."""
+        """Single-pass 1-D full-wave reflection, transmission and absorption of the
+        collisional n²(s), incident from vacuum at the launcher. The wave leaves into vacuum
+        at a reflecting wall or a dump (a sheath or gap in front of it), into the profile's
+        far-end value continued at an open end."""
         key = corner.index
         if key not in self._wave:
+            right = None if self.wall == "open" else 1.0
             # rtol 1e-3 for the profile refinement: reflected and absorbed fractions agree with
             # rtol 1e-4 to better than 1e-5 on both examples at half the cost
             self._wave[key] = slab_reflection(self.s, lambda sq: self.n2(corner, sq),
-                                              corner.frequency, rtol=WAVE_RTOL)
+                                              corner.frequency, rtol=WAVE_RTOL, n2_right=right)
         return self._wave[key]
+
+    def load(self, corner: Corner) -> PlasmaLoad:
+        """Where this part's power goes at one corner, the far end included: a reflecting
+        wall sends what crosses the plasma back through it, and the returned fraction is
+        the worst over the unknown round-trip phase to the wall
+        (:func:`rfcheck.physics.fullwave.mirror_return`); a dump or an open end lets it go."""
+        key = corner.index
+        if key not in self._load:
+            w = self.wave(corner)
+            if self.wall in REFLECTING_WALLS:
+                couples = w.transmitted > 0 and np.isfinite(w.r_right)
+                returned = mirror_return(w, 1.0).worst if couples else w.reflected
+                escaped = 0.0
+            else:
+                returned, escaped = w.reflected, w.transmitted
+            absorbed = max(0.0, 1.0 - returned - escaped)
+            self._load[key] = PlasmaLoad(returned, escaped, absorbed, w, self.wall,
+                                         self.wall_declared)
+        return self._load[key]
+
+    def wall_text(self) -> str:
+        """The far end in words, with the assumption when it is not declared."""
+        z = self.z_at(self.length) * 1e3
+        what = {"metal": "a metal wall", "substrate": "a substrate (reflecting)",
+                "dump": "a dump (absorbing)", "open": "open (the plasma continues)"}[self.wall]
+        if self.wall_declared:
+            return f"the far end at z = {z:.4g} mm is {what}"
+        return (f"the far end at z = {z:.4g} mm is not declared: taken as a reflecting metal "
+                "wall (conservative)")
 
 
 def _reach_of(acc: PathAccess) -> Reach:
@@ -341,9 +455,11 @@ def _reach_of(acc: PathAccess) -> Reach:
                  acc.first_cutoff_z, width)
 
 
-def launch_path(ctx, feed: Feed) -> LaunchPath:
-    """The feed's launch path (cached on the Context)."""
-    key = ("launch-path", feed.id)
+def launch_path(ctx, feed: Feed, mode: str | None = None) -> LaunchPath:
+    """The launch path of one part (mode; default the feed's intended mode) of the feed's
+    power (cached on the Context)."""
+    mode = (mode or feed.launch.mode).upper()
+    key = ("launch-path", feed.id, mode)
     if key not in ctx._cache:
-        ctx._cache[key] = LaunchPath(ctx, feed)
+        ctx._cache[key] = LaunchPath(ctx, feed, mode)
     return ctx._cache[key]

@@ -66,6 +66,7 @@ def _corner_entry(path: LaunchPath, corner: Corner, idx: np.ndarray, harmonic: i
                              "m", "no cutoff before the target"),
         "tunnelling_factor": _q(reach.factor, "1"),
         "landmarks": landmarks,
+        "plasma_returned": _q(path.load(corner).returned, "1"),
         "plasma_reflected": _q(wave.reflected, "1"),
         "plasma_absorbed": _q(wave.absorbed, "1"),
         "plasma_transmitted": _q(wave.transmitted, "1"),
@@ -74,7 +75,9 @@ def _corner_entry(path: LaunchPath, corner: Corner, idx: np.ndarray, harmonic: i
 
 
 def path_characteristics(ctx) -> dict:
-    """Per feed: the launch path and, per envelope corner, n²(z) (real and imaginary part of
+    """Per feed: the mode content (each part of the launched power with its share and, per
+    corner, where its power goes), the launch path of the intended mode and, per envelope
+    corner, n²(z) (real and imaginary part of
     the collisional n² of the launched wave), X(z) = n_e/n_c, Y(z) = f_ce/f, the target layer,
     first cutoff, tunnelling factor, landmark positions and the full-wave fractions.
 
@@ -94,12 +97,40 @@ def path_characteristics(ctx) -> dict:
     return out
 
 
+def _part_entries(ctx, feed) -> dict:
+    """Per part of the launched power: its share and, per corner, where its power goes."""
+    from .parts import mode_content
+
+    content = mode_content(ctx, feed)
+    out = {}
+    for part in content.parts:
+        path = launch_path(ctx, feed, part.mode)
+        corners = []
+        for c in path.corners():
+            load = path.load(c)
+            corners.append({"density": _q(c.density, "m^-3"), "current_scale": _q(c.scale, "1"),
+                            "frequency": _q(c.frequency, "Hz"),
+                            "fraction": {"value": content.fraction_range(part.mode, c),
+                                         "unit": "1"},
+                            "returned": _q(load.returned, "1"),
+                            "absorbed": _q(load.absorbed, "1"),
+                            "escaped": _q(load.escaped, "1"),
+                            "first_pass_reflected": _q(load.first.reflected, "1"),
+                            "first_pass_absorbed": _q(load.first.absorbed, "1"),
+                            "first_pass_transmitted": _q(load.first.transmitted, "1")})
+        out[part.mode] = {"wave": path.label, "fraction_low": _q(part.low, "1"),
+                          "fraction_high": _q(part.high, "1"), "far_end": path.wall,
+                          "far_end_declared": path.wall_declared, "corners": corners}
+    return {"polarisation": content.summary(), "parts": out}
+
+
 def _feed_entry(ctx, feed, harmonic: int) -> dict:
     path = launch_path(ctx, feed)
     if path.problem:
         return {"reason": path.problem}
     idx = _decimation(path.s.size)
     return {
+        "mode_content": _part_entries(ctx, feed),
         "wave": path.label,
         "mode": path.mode,
         "angle_to_field": _q(feed.launch.angle_to_field, "rad"),

@@ -50,17 +50,28 @@ def model(magnet: Magnet, *, length: float, density: tuple[float, float],
           t_e: tuple[float, float] = (10.0, 10.0), profile: DensityProfile | None = None,
           neutral: NeutralGas | None = None, absorption: str = "ecr", f: float = F0,
           power: float = 1e3, max_reflected_power: float | None = None,
-          windows: tuple = ()) -> SourceModel:
+          windows: tuple = (), polarisation: str | None = "as-mode",
+          e_angle: float | None = None, far_end: str | None = "open") -> SourceModel:
+    """A single-feed source. By default the feed launches all its power in `mode`
+    (polarisation "as-mode") and the far end is open (the wave leaves): the single wave of
+    the closed-form references. Give polarisation=None / far_end=None for the undeclared
+    (worst-case) behaviour."""
     plasma = Plasma(Span(*density), Span(*t_e), (IonShare("Ar+", 1.0),), neutral,
                     profile or DensityProfile())
     feed = Feed("main", f, 0.0, power, 1.0, max_reflected_power, "free-space",
-                Launch(launch_z, direction, mode, angle), absorption)
-    return SourceModel(SourceInfo("test source"), plasma, Chamber(0.05, 0.0, length), magnet,
-                       (feed,), windows)
+                Launch(launch_z, direction, mode, angle, polarisation, e_angle), absorption)
+    walls = (None, far_end) if direction > 0 else (far_end, None)
+    return SourceModel(SourceInfo("test source"), plasma, Chamber(0.05, 0.0, length, (), *walls),
+                       magnet, (feed,), windows)
 
 
 def context(m: SourceModel) -> Context:
-    return Context(m, Envelope.of(m))
+    """A run's context under the default policy (every rule selected, as in rfcheck.run)."""
+    from rfcheck.rules.registry import all_rules
+
+    ctx = Context(m, Envelope.of(m))
+    ctx.selected_options.update({r.id: POLICY.option_values(r) for r in all_rules()})
+    return ctx
 
 
 def evaluate(ctx: Context, rule_id: str, **overrides):

@@ -25,7 +25,7 @@ import pytest
 from launch_models import (F0, context, demo_model, evaluate, k0, linear_field, model, one)
 
 from rfcheck.findings import Status
-from rfcheck.model import Launch, NeutralGas
+from rfcheck.model import Launch, NeutralGas, Span
 from rfcheck.physics.collisions import momentum_transfer_cross_section
 from rfcheck.physics.constants import E_CHARGE, K_B, M_E, TWO_PI
 from rfcheck.physics.frequencies import ecr_field
@@ -96,10 +96,19 @@ def test_demo_single_pass_and_an_l_wave():
     ctx = context(base)
     f = one(ctx, "absorption.single-pass")
     assert f.status is Status.PASS and f.measured.value > 0.9  # magnetic beach absorbs
-    feed = dataclasses.replace(base.feeds[0], launch=Launch(0.0, 1, "L", 0.0))
+    feed = dataclasses.replace(base.feeds[0], launch=Launch(0.0, 1, "L", 0.0, "as-mode"))
     f_l = one(context(dataclasses.replace(base, feeds=(feed,))), "absorption.single-pass")
-    # the L wave has no electron-cyclotron resonance (Stix 1992 ch. 1: L = 1 − X/(1 + Y))
-    assert f_l.status is Status.WARN and f_l.measured.value == 0.0
+    # the L wave has no electron-cyclotron resonance (Stix 1992 ch. 1: L = 1 − X/(1 + Y)):
+    # only its collisional damping, ν/ω ~ 5e-3 over ~0.3 m, absorbs
+    assert f_l.status is Status.WARN and f_l.measured.value < 2e-2
+    assert "no electron-cyclotron resonance" in f_l.message
+    # a linear launch along B is half R, half L at any field (Stix 1992 ch. 1: the R and L
+    # waves are the circular eigenpolarisations along B; a linear wave is their equal sum)
+    lin = dataclasses.replace(base.feeds[0], launch=Launch(0.0, 1, "R", 0.0, "linear"))
+    f_lin = one(context(dataclasses.replace(base, feeds=(lin,))), "absorption.single-pass")
+    assert f_lin.measured.value == pytest.approx(0.5 * f.measured.value
+                                                 + 0.5 * f_l.measured.value, rel=1e-9)
+    assert [p["fraction"] for p in f_lin.details["parts"]] == pytest.approx([0.5, 0.5])
 
 
 def test_collisional_regime_electron_ion_only():
@@ -118,7 +127,7 @@ def test_collisional_regime_with_neutral_argon(pressure, status):
     t_e = 3.0
     m = resonance_model(F0, 1, "R", 1e16, t_e, 0.1)
     m = dataclasses.replace(m, plasma=dataclasses.replace(
-        m.plasma, neutral=NeutralGas("Ar", pressure, 300.0)))
+        m.plasma, neutral=NeutralGas("Ar", Span(pressure, pressure), 300.0)))
     fnd = one(context(m), "absorption.collisional-regime")
     n_g = pressure / (K_B * 300.0)  # ideal gas (Lieberman & Lichtenberg ch. 3)
     v_mean = math.sqrt(8 * E_CHARGE * t_e / (math.pi * M_E))

@@ -27,17 +27,30 @@ E_AIR = 3.0e6  # V/m, air at 1 atm (reference-values §5, common practice)
 INCH = 25.4e-3  # m, exact
 
 
-def make_feed(line, f, tol=0.0, power=1.5e3):
-    return Feed("main", f, tol, power, 1.0, None, line, Launch(0.0, 1, "R", 0.0), "ecr")
+def make_feed(line, f, tol=0.0, power=1.5e3, cold_gamma=0.0):
+    """A feed whose unlit cavity is declared matched (|Γ_cold| = 0 by default), so that the
+    ignition state of line.breakdown sees the matched line of the closed forms."""
+    return Feed("main", f, tol, power, 1.0, None, line, Launch(0.0, 1, "R", 0.0), "ecr",
+                cold_cavity_gamma=cold_gamma)
 
 
-def evaluate(base, rule_id, policy, feed, windows=(), materials=(), **overrides):
+def evaluate(base, rule_id, policy, feed, windows=(), materials=(), state=None, **overrides):
+    """The findings of one rule; with `state` ("running"/"ignition") the one of that state."""
     model = dataclasses.replace(base, feeds=(feed,), windows=tuple(windows),
                                 materials=tuple(materials))
     rule = get_rule(rule_id)
     opts = policy.option_values(rule) | overrides
     ctx = Context(model, Envelope.of(model)).for_rule(rule.id, rule.severity)
-    return list(rule.func(ctx, **opts))
+    out = list(rule.func(ctx, **opts))
+    if state is not None:
+        out = [f for f in out if f.subject.endswith(state)]
+    return out
+
+
+def context_of(base, feed, windows=(), materials=()):
+    model = dataclasses.replace(base, feeds=(feed,), windows=tuple(windows),
+                                materials=tuple(materials))
+    return Context(model, Envelope.of(model))
 
 
 # ----------------------------------------------------------------------------- line.breakdown
@@ -54,7 +67,7 @@ def test_peak_field_at_table_p_max_is_the_air_breakdown_field(base_model, policy
                                                               p_max):
     # at P = P_max (matched, no window) the peak field equals E_bd: margin 0 with factor 1
     (fd,) = evaluate(base_model, "line.breakdown", policy, make_feed(line, f, power=p_max),
-                     safety_factor=1.0)
+                     state="ignition", safety_factor=1.0)
     assert fd.measured.value == pytest.approx(E_AIR, rel=2e-3)  # table rounding
     assert fd.limit.value == pytest.approx(E_AIR)
     # the closed form E0 = √(4 Z P/(ab)) with Z = η0/√(1 − (c/2af)²) (Pozar §3.3)
@@ -73,7 +86,8 @@ def test_peak_field_at_table_p_max_is_the_air_breakdown_field(base_model, policy
 ])
 def test_default_safety_factor_two_quarters_the_power(base_model, policy, power, status):
     # default s = 2 in field (reference-values §5: practical factor 2–4, common practice)
-    (fd,) = evaluate(base_model, "line.breakdown", policy, make_feed("WR-340", 2.45e9, power=power))
+    (fd,) = evaluate(base_model, "line.breakdown", policy, make_feed("WR-340", 2.45e9, power=power),
+                     state="ignition")
     assert fd.limit.value == pytest.approx(E_AIR / 2)
     assert fd.status is status
 
@@ -89,19 +103,43 @@ def test_standing_wave_of_a_quarter_wave_window_raises_the_peak_field(base_model
     d = math.pi / 2 / beta[1]
     mat = Material("alumina-lossless", 9.8, 0.0, source="test material")
     win = Window("w", "main", 0.0, (WindowLayer("alumina-lossless", d),))
-    (fd,) = evaluate(base_model, "line.breakdown", policy, make_feed("WR-340", f, power=p),
-                     windows=[win], materials=[mat])
+    feed = make_feed("WR-340", f, power=p)
+    (fd,) = evaluate(base_model, "line.breakdown", policy, feed, windows=[win], materials=[mat],
+                     state="running")
     e0 = math.sqrt(4 * ETA0 / math.sqrt(1 - (fc / f) ** 2) * p / (a * b))
-    assert fd.measured.value == pytest.approx((1 + g) * e0, rel=1e-9)
-    assert fd.worst_case["gamma"].value == pytest.approx(g, rel=1e-9)
-    assert "window w" in fd.message and "upper bound" in fd.message
+    # running state: the window's |Γ| plus the plasma's returned amplitude (load.reflected-
+    # power's bound, computed independently here from the window closed form)
+    from rfcheck.rules.load import running_gamma
+
+    running = running_gamma(context_of(base_model, feed, [win], [mat]), feed)
+    assert running.window == pytest.approx(g, rel=1e-9)
+    bound = min(1.0, g + running.plasma)
+    assert fd.measured.value == pytest.approx((1 + bound) * e0, rel=1e-9)
+    assert fd.worst_case["gamma"].value == pytest.approx(bound, rel=1e-9)
+    assert "vacuum" not in fd.message and "(w)" in fd.message and "upper bound" in fd.message
+
+
+@pytest.mark.parametrize("cold, expected", [
+    pytest.param(None, 2.0, id="undeclared cold cavity: full standing wave, 2 E0 (Pozar §2.3)"),
+    pytest.param(0.5, 1.5, id="|Γ_cold| = 0.5: 1.5 E0 (Pozar §2.3)"),
+])
+def test_ignition_state_doubles_the_peak_field_at_full_reflection(base_model, policy, cold,
+                                                                   expected):
+    a, b, f, p = 3.4 * INCH, 1.7 * INCH, 2.45e9, 1.5e3
+    fc = C / (2 * a)
+    e0 = math.sqrt(4 * ETA0 / math.sqrt(1 - (fc / f) ** 2) * p / (a * b))  # Pozar §3.3
+    (fd,) = evaluate(base_model, "line.breakdown", policy,
+                     make_feed("WR-340", f, power=p, cold_gamma=cold), state="ignition")
+    assert fd.measured.value == pytest.approx(expected * e0, rel=1e-9)
+    assert fd.details["state"] == "ignition"
+    assert ("not declared" in fd.message) is (cold is None)
 
 
 def test_breakdown_worst_point_is_the_lowest_frequency(base_model, policy):
     # Z_TE10 rises towards cutoff, so E0 is largest at f − tolerance (Pozar §3.3)
-    (fd,) = evaluate(base_model, "line.breakdown", policy,
-                     make_feed("WR-340", 2.45e9, tol=50e6, power=1e6))
-    assert fd.worst_case["frequency"].value == pytest.approx(2.40e9)
+    for fd in evaluate(base_model, "line.breakdown", policy,
+                       make_feed("WR-340", 2.45e9, tol=50e6, power=1e6)):
+        assert fd.worst_case["frequency"].value == pytest.approx(2.40e9)
 
 
 @pytest.mark.parametrize("line", ["free-space", "circular:90 mm", "EIA-1-5/8"])

@@ -27,7 +27,7 @@ from launch_models import (F0, context, demo_model, evaluate, k0, linear_field, 
                            step_reflection, uniform_field)
 
 from rfcheck.findings import Status
-from rfcheck.model import DensityProfile, NeutralGas
+from rfcheck.model import DensityProfile, NeutralGas, Span
 from rfcheck.physics.collisions import (electron_ion_collision_frequency,
                                         electron_neutral_collision_frequency)
 from rfcheck.physics.constants import AMU, E_CHARGE, EPS0, M_E, TWO_PI
@@ -58,7 +58,7 @@ def test_uniform_slab_reflection_is_fabry_perot(x, d):
     edge = 1e-7
     prof = DensityProfile(kind="table", z=(0.0, a - edge, a, b, b + edge, 0.3),
                           shape=(0.0, 0.0, 1.0, 1.0, 0.0, 0.0))
-    gas = NeutralGas("Ar", 1.0, 300.0)
+    gas = NeutralGas("Ar", Span(1.0, 1.0), 300.0)
     m = model(uniform_field(0.05), length=0.3, density=(x * N_C, x * N_C), mode="O",
               angle=math.pi / 2, t_e=(5.0, 5.0), profile=prof, neutral=gas)
     f = one(context(m), "load.plasma-reflection")
