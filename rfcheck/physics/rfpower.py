@@ -30,6 +30,9 @@ __all__ = [
     "te10_field_amplitude",
     "te10_peak_field",
     "te10_max_power",
+    "te11_field_amplitude",
+    "te11_peak_field",
+    "te11_max_power",
     "max_net_power",
     "max_forward_power",
     "air_collision_frequency",
@@ -102,6 +105,52 @@ def te10_max_power(a: ArrayLike, b: ArrayLike, f: ArrayLike,
     """
     e = np.asarray(breakdown, dtype=float)
     return np.asarray(a, dtype=float) * np.asarray(b, dtype=float) * e * e / (4.0 * _te10_impedance(a, f))
+
+
+def _te11_constant() -> float:
+    """p'² / ((p'² − 1) J1(p')²) with p' = p'11, the first zero of J1' (1.841184)."""
+    from scipy.special import jnp_zeros, jv
+
+    p = float(jnp_zeros(1, 1)[0])
+    return p * p / ((p * p - 1.0) * float(jv(1, p)) ** 2)
+
+
+def _te11_impedance(radius, f):
+    from scipy.special import jnp_zeros
+
+    fc = float(jnp_zeros(1, 1)[0]) * C / (TWO_PI * np.asarray(radius, dtype=float))
+    return te_wave_impedance(f, fc)
+
+
+def te11_field_amplitude(power: ArrayLike, diameter: ArrayLike, f: ArrayLike) -> NDArray:
+    """Largest transverse field of a travelling TE11 wave in an empty circular guide, V/m.
+
+    The field of TE11 is largest on the axis, where E_ρ and E_φ both tend to
+    ωμ A/(2 k_c) (J1(x)/x and J1'(x) → 1/2); with the mode's power flow
+    P = π ωμ β |A|² (p'² − 1) J1(p')² / (4 k_c⁴) (Pozar §3.4) this gives
+
+        E_axis² = Z_TE p'² P / (π a² (p'² − 1) J1(p')²) ≈ 1.333 Z_TE P / a²,
+
+    a = diameter/2, Z_TE = η0 / √(1 − (f_c/f)²). NaN below cutoff.
+    """
+    a = 0.5 * np.asarray(diameter, dtype=float)
+    z = _te11_impedance(a, f)
+    return np.sqrt(_te11_constant() * z * np.asarray(power, dtype=float) / (math.pi * a * a))
+
+
+def te11_peak_field(power: ArrayLike, diameter: ArrayLike, f: ArrayLike,
+                    gamma_mag: ArrayLike = 0.0) -> NDArray:
+    """Largest field in a circular TE11 guide with a standing wave, V/m: (1 + |Γ|) E_axis."""
+    return (1.0 + np.asarray(gamma_mag, dtype=float)) * te11_field_amplitude(power, diameter, f)
+
+
+def te11_max_power(diameter: ArrayLike, f: ArrayLike,
+                   e_max: ArrayLike = AIR_BREAKDOWN_FIELD) -> NDArray:
+    """Power of a matched TE11 wave whose axial field equals e_max, W (theoretical capacity):
+    P_max = π a² e_max² / (Z_TE p'² / ((p'² − 1) J1(p')²))."""
+    a = 0.5 * np.asarray(diameter, dtype=float)
+    e = np.asarray(e_max, dtype=float)
+    return math.pi * a * a * e * e / (_te11_constant() * _te11_impedance(a, f))
 
 
 def max_net_power(p_max: ArrayLike, gamma_mag: ArrayLike) -> NDArray:

@@ -9,7 +9,8 @@ import numpy as np
 
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.physics.rfpower import (breakdown_field, max_forward_power, max_net_power,
-                                     te10_max_power, te10_peak_field, vswr)
+                                     te10_max_power, te10_peak_field, te11_max_power,
+                                     te11_peak_field, vswr)
 from rfcheck.physics.waveguide import line_from_name
 
 from .context import Context
@@ -107,15 +108,18 @@ def _watts(x: float) -> str:
 
 
 @rule("line.breakdown", severity=Severity.ERROR,
-      summary="Peak field in each feed's guide at peak power, standing wave of its windows "
-              "included, stays under the air breakdown field divided by a safety factor.",
+      summary="Peak field in each feed's guide at peak power, with the standing wave of the "
+              "running and of the ignition state, stays under the air breakdown field divided "
+              "by a safety factor.",
       options={"safety_factor": Option("ratio", "factor (in field) between the breakdown "
                                                 "field of air at 1 atm and the allowed peak field")},
-      applies="feeds on rectangular guide (TE10); not circular, coaxial or free-space feeds")
+      applies="feeds on rectangular (TE10) and circular (TE11) guide; not coaxial or free-space "
+              "feeds")
 def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
     """What it checks
-    The largest electric field in the feed's rectangular guide, at the centre of the broad
-    wall at a standing-wave maximum: E_pk = (1 + |Γ|) E0 at the feed's peak forward power,
+    The largest electric field in the feed's guide — at the centre of the broad wall of a
+    rectangular guide (TE10), on the axis of a circular guide (TE11) — at a standing-wave
+    maximum: E_pk = (1 + |Γ|) E0 at the feed's peak forward power,
     at the frequency of f ± tolerance where E0 is largest, in both states of the load:
     running, with |Γ| the bound of load.reflected-power (the windows' worst reflection plus
     the plasma's returned share, all parts of the launched power); ignition, with the unlit
@@ -132,8 +136,8 @@ def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
     multipactor and surface flashover, which this rule does not assess. It supports review
     and defers to the line supplier's ratings, local codes and qualified practice.
 
-    Not applicable to free-space feeds (no guide), and to circular and coaxial lines, for
-    which rfcheck has no peak-field formula yet (TE11 and TEM field maxima differ from TE10).
+    Not applicable to free-space feeds (no guide), and to coaxial lines, for which rfcheck
+    has no peak-field formula yet.
 
     Why it matters
     An arc in the air-filled guide runs back towards the generator, burns flanges and
@@ -141,7 +145,9 @@ def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
     raises the standing-wave maximum between it and the generator.
 
     Equation
-    E0 = √(4 Z_TE10 P / (a b)), Z_TE10 = η0 / √(1 − (f_c/f)²);  E_pk = (1 + |Γ|) E0;
+    E0 = √(4 Z_TE10 P / (a b)), Z_TE10 = η0 / √(1 − (f_c/f)²); TE11 on the axis of a guide of
+    radius a: E0² = Z_TE p'² P / (π a² (p'² − 1) J1(p')²) ≈ 1.333 Z_TE P / a²;
+    E_pk = (1 + |Γ|) E0;
     limit E_bd / s with E_bd = 3 MV/m;  P_max = a b E_bd² √(1 − (f_c/f)²) / (4 η0);
     largest net power P_max / VSWR; largest peak forward power P_max / (s² (1 + |Γ|)²).
 
@@ -151,7 +157,7 @@ def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
 
     References
     D. M. Pozar, Microwave Engineering, 4th ed. (2012), §2.3 (standing waves), §3.3 (TE10
-    power flow and power capacity); A. D. MacDonald, Microwave Breakdown in Gases (Wiley
+    power flow and power capacity), §3.4 (TE11 fields and power flow); A. D. MacDonald, Microwave Breakdown in Gases (Wiley
     1966). Air at 1 atm: 3 MV/m (30 kV/cm), common practice.
     """
     e_bd = float(breakdown_field())
@@ -160,7 +166,7 @@ def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
                    f"{limit / 1e6:.3g} MV/m (theoretical upper bound)")
     for feed in ctx.model.feeds:
         line = line_from_name(feed.line)
-        if line.kind != "rectangular":
+        if line.kind not in ("rectangular", "circular"):
             why = ("quasi-optical (free-space) feed: no guide to break down" if line.kind == "free-space"
                    else f"{line.kind} line ({line.dominant_mode}): no peak-field formula in rfcheck "
                         "yet; check against the supplier's power rating")
@@ -186,9 +192,15 @@ def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
 def _breakdown_state(ctx, feed, line, state, gamma, source, requirement, limit, e_bd,
                      safety_factor) -> Finding:
     subject = f"feed {feed.id}, {state}"
-    a_dim, b_dim = line.dimension("a"), line.dimension("b")
     f = ctx.envelope.frequencies(feed)
-    e_pk = te10_peak_field(feed.power, a_dim, b_dim, f, gamma)
+    if line.kind == "circular":
+        d_dim = line.dimension("diameter")
+        e_pk = te11_peak_field(feed.power, d_dim, f, gamma)
+        capacity = lambda fw: float(te11_max_power(d_dim, fw, e_bd))  # noqa: E731
+    else:
+        a_dim, b_dim = line.dimension("a"), line.dimension("b")
+        e_pk = te10_peak_field(feed.power, a_dim, b_dim, f, gamma)
+        capacity = lambda fw: float(te10_max_power(a_dim, b_dim, fw, e_bd))  # noqa: E731
     i = int(np.argmax(np.where(np.isnan(e_pk), np.inf, e_pk)))
     worst_f, worst_e = float(f[i]), float(e_pk[i])
     where = {"frequency": Quantity(worst_f, "Hz")} if f.size > 1 else {}
@@ -199,9 +211,9 @@ def _breakdown_state(ctx, feed, line, state, gamma, source, requirement, limit, 
                            message=f"peak field undefined: {line.name} does not propagate over "
                                    f"f ± tolerance, or the window reflection is undefined "
                                    f"(see line.waveguide-band)",
-                           measured=Quantity(None, "V/m", "no propagating TE10 wave"),
+                           measured=Quantity(None, "V/m", f"no propagating {line.dominant_mode} wave"),
                            limit=Quantity(limit, "V/m"), worst_case=where, details=details)
-    p_max = float(te10_max_power(a_dim, b_dim, worst_f, e_bd))
+    p_max = capacity(worst_f)
     p_net = float(max_net_power(p_max, gamma))
     p_fwd = float(max_forward_power(p_max, gamma)) / safety_factor ** 2
     margin = limit - worst_e

@@ -110,7 +110,7 @@ def _part_entries(ctx, feed) -> dict:
             load = path.load(c)
             corners.append({"density": _q(c.density, "m^-3"), "current_scale": _q(c.scale, "1"),
                             "frequency": _q(c.frequency, "Hz"),
-                            "fraction": {"value": content.fraction_range(part.mode, c),
+                            "fraction": {"value": list(content.fraction_range(part.mode, c)),
                                          "unit": "1"},
                             "returned": _q(load.returned, "1"),
                             "absorbed": _q(load.absorbed, "1"),

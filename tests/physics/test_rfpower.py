@@ -138,3 +138,33 @@ def test_power_bookkeeping():
     assert float(rp.reflected_power(1500.0, 0.2)) == pytest.approx(60.0)
     assert float(rp.absorbed_power(1e6, 2.64e-4)) == pytest.approx(264.0)  # reference-values §4: 264 W/MW
     assert float(rp.transmitted_power(100.0, 0.9)) == pytest.approx(90.0)
+
+
+def test_te11_axis_field_against_the_integrated_poynting_flux():
+    # integrate |E|²/(2 Z_TE) of Pozar's TE11 fields (§3.4: E_ρ ∝ J1(k_c ρ)/(k_c ρ) cos φ,
+    # E_φ ∝ J1'(k_c ρ) sin φ) over the cross-section of an 85 mm guide at 2.45 GHz and compare
+    # the field on the axis, ωμA/(2 k_c), with te11_field_amplitude of that power
+    import math
+
+    from scipy.integrate import dblquad
+    from scipy.special import jnp_zeros, jv, jvp
+
+    from rfcheck.physics.constants import C, MU0
+    from rfcheck.physics.rfpower import te11_field_amplitude, te11_max_power
+
+    d, f = 0.085, 2.45e9
+    a = d / 2
+    kc = float(jnp_zeros(1, 1)[0]) / a
+    w = 2 * math.pi * f
+    beta = math.sqrt((w / C) ** 2 - kc * kc)
+    z = w * MU0 / beta
+
+    def flux(r, ph):
+        er = w * MU0 / (kc * kc * r) * math.cos(ph) * jv(1, kc * r)
+        ep = w * MU0 / kc * math.sin(ph) * jvp(1, kc * r)
+        return (er * er + ep * ep) / (2 * z) * r
+
+    power, _ = dblquad(flux, 0.0, 2 * math.pi, 1e-12, a, epsabs=0, epsrel=1e-11)
+    e_axis = w * MU0 / (2 * kc)
+    assert float(te11_field_amplitude(power, d, f)) == pytest.approx(e_axis, rel=1e-8)
+    assert float(te11_max_power(d, f, e_axis)) == pytest.approx(power, rel=1e-8)

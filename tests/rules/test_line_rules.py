@@ -142,10 +142,27 @@ def test_breakdown_worst_point_is_the_lowest_frequency(base_model, policy):
         assert fd.worst_case["frequency"].value == pytest.approx(2.40e9)
 
 
-@pytest.mark.parametrize("line", ["free-space", "circular:90 mm", "EIA-1-5/8"])
+@pytest.mark.parametrize("line", ["free-space", "EIA-1-5/8"])
 def test_breakdown_not_applicable_without_te10_formula(base_model, policy, line):
     (fd,) = evaluate(base_model, "line.breakdown", policy, make_feed(line, 2.45e9))
     assert fd.status is Status.NOT_APPLICABLE
+
+
+def test_circular_guide_breakdown_from_the_te11_axis_field(base_model, policy):
+    # matched TE11 in a 90 mm guide at 2.45 GHz: the axial field from Pozar's TE11 fields
+    # and power flow (§3.4), E² = Z p'² P / (π a² (p'² − 1) J1(p')²); at P_max it is E_bd
+    from scipy.special import jnp_zeros, jv
+
+    d, f = 0.09, 2.45e9
+    p1 = float(jnp_zeros(1, 1)[0])
+    a = d / 2
+    z = ETA0 / math.sqrt(1 - (p1 * C / (2 * math.pi * a * f)) ** 2)
+    p_max = math.pi * a * a * E_AIR**2 * (p1**2 - 1) * jv(1, p1) ** 2 / (z * p1**2)
+    (fd,) = evaluate(base_model, "line.breakdown", policy,
+                     make_feed("circular:90 mm", f, power=p_max), state="ignition",
+                     safety_factor=1.0)
+    assert fd.measured.value == pytest.approx(E_AIR, rel=1e-9)
+    assert "circular 90 mm" in fd.message
 
 
 # ----------------------------------------------------------------------------- line.waveguide-band
