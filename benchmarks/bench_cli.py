@@ -1,69 +1,95 @@
-"""Whole-run cost of `rfcheck check SPEC --json -` against importing its runtime dependencies.
+"""Whole-run cost of `rfcheck check SPEC --json -` on every bundled example against the
+import floor, and of `--pdf` against `--json`.
 
-Target (project-wide): the check takes at most 2x the time of merely importing numpy, scipy,
-pint (with its registry), magpylib and jinja2, measured in the same run on the same machine.
-Prints the ratio; it is a benchmark, not a test.
+The import floor is exactly what the target names: a fresh interpreter running
+``import numpy, scipy, pint, magpylib, jinja2`` and building one pint ``UnitRegistry`` —
+nothing else. Each example's check and the floor are timed alternately in the same run
+(medians). Targets: check --json ≤ 1.5 × floor on every example (project-wide), check --pdf ≤
+3 × check --json (report issue). A JSON-only run must not import weasyprint or matplotlib.
 
-    python benchmarks/bench_cli.py [SPEC] [--repeat N]
+    python benchmarks/bench_cli.py [--repeat N] [--quick]
 """
 
 from __future__ import annotations
 
 import argparse
-import statistics
+import os
 import subprocess
 import sys
-import time
+import tempfile
 from pathlib import Path
 
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+from harness import Row, Timing, print_table, run_process  # noqa: E402
+
 ROOT = Path(__file__).resolve().parents[1]
-REFERENCE = (
-    "import numpy, scipy, scipy.special, scipy.optimize, scipy.interpolate, jinja2, magpylib\n"
-    "import pint; pint.UnitRegistry()\n"
-)
+FLOOR = "import numpy, scipy, pint, magpylib, jinja2\npint.UnitRegistry()\n"
 
 
-def timed(cmd: list[str]) -> float:
-    t0 = time.perf_counter()
-    proc = subprocess.run(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
-    dt = time.perf_counter() - t0
-    if proc.returncode not in (0, 1):
-        raise SystemExit(f"{' '.join(cmd)} exited {proc.returncode}: {proc.stderr[-500:]}")
-    return dt
+def examples() -> list[Path]:
+    return sorted((ROOT / "examples").glob("*.toml"))
 
 
-def main() -> None:
-    ap = argparse.ArgumentParser()
-    ap.add_argument("spec", nargs="?", default=str(ROOT / "examples" / "bench-ecr-reactor.toml"))
-    ap.add_argument("--repeat", type=int, default=5)
-    args = ap.parse_args()
-    # an installed package runs from compiled bytecode (pip compiles it); do the same here even
-    # where PYTHONDONTWRITEBYTECODE is set, so the ratio measures the product, not the compiler
+def _compile() -> None:
+    # an installed package runs from compiled bytecode (pip compiles it); do the same here
+    # even where PYTHONDONTWRITEBYTECODE is set, so the ratio measures the product
     import compileall
 
     import rfcheck
 
     compileall.compile_dir(str(Path(rfcheck.__file__).parent), quiet=1)
-    ref_cmd = [sys.executable, "-c", REFERENCE]
-    run_cmd = [sys.executable, "-m", "rfcheck.cli", "check", args.spec, "--json", "-"]
-    timed(ref_cmd), timed(run_cmd)  # warm the file cache
-    ref, run = [], []
-    for _ in range(args.repeat):  # interleave so drift hits both equally
-        ref.append(timed(ref_cmd))
-        run.append(timed(run_cmd))
-    r, c = statistics.median(ref), statistics.median(run)
-    print(f"import numpy+scipy+pint(registry)+magpylib+jinja2: {r * 1e3:8.1f} ms (median of {args.repeat})")
-    print(f"rfcheck check {Path(args.spec).name} --json -:    {c * 1e3:8.1f} ms")
-    print(f"ratio: {c / r:.2f}  (target <= 2.0) -> {'met' if c / r <= 2.0 else 'NOT met'}")
-    # weasyprint and matplotlib must not be imported for a JSON-only run
+
+
+def _is_spec(p: Path) -> bool:
+    return "schema" in p.read_text(encoding="utf-8")[:2000] and "[source]" in p.read_text(
+        encoding="utf-8")
+
+
+def measure(quick: bool = False, repeat: int = 7) -> list[Row]:
+    _compile()
+    repeat = 1 if quick else repeat
+    rows: list[Row] = []
+    floor_cmd = [sys.executable, "-c", FLOOR]
+    specs = [p for p in examples() if _is_spec(p)]
+    with tempfile.TemporaryDirectory() as tmp:
+        for spec in specs:
+            json_cmd = [sys.executable, "-m", "rfcheck.cli", "check", str(spec), "--json", "-"]
+            floor, check = Timing("floor"), Timing("check --json")
+            run_process(floor_cmd), run_process(json_cmd)  # warm the file cache
+            for _ in range(repeat):
+                floor.times.append(run_process(floor_cmd))
+                check.times.append(run_process(json_cmd))
+            rows.append(Row(f"check --json {spec.stem} / import floor",
+                            check.median / floor.median, "x", "<= 1.5",
+                            f"{check.text()}; {floor.text()}"))
+            if quick and spec != specs[0]:
+                continue  # quick mode: one PDF shows that the comparison runs
+            pdf = Path(tmp) / f"{spec.stem}.pdf"
+            pdf_cmd = [sys.executable, "-m", "rfcheck.cli", "check", str(spec), "--pdf", str(pdf)]
+            js, pd = Timing("check --json"), Timing("check --pdf")
+            for _ in range(1 if quick else max(3, repeat // 2)):
+                js.times.append(run_process(json_cmd))
+                pd.times.append(run_process(pdf_cmd))
+            rows.append(Row(f"check --pdf {spec.stem} / check --json", pd.median / js.median,
+                            "x", "<= 3", f"{pd.text()}; {js.text()}"))
     probe = subprocess.run(
         [sys.executable, "-c",
-         "import sys, runpy; sys.argv=['rfcheck','check',%r,'--json','-'];\n"
-         "from rfcheck.cli import main\nimport io, contextlib\n"
-         "with contextlib.redirect_stdout(io.StringIO()):\n    main(sys.argv[1:])\n"
-         "print(sorted(m for m in ('weasyprint','matplotlib') if m in sys.modules))" % args.spec],
-        capture_output=True, text=True)
-    print(f"heavy modules imported by a JSON-only run: {probe.stdout.strip() or probe.stderr[-300:]}")
+         "import sys, io, contextlib\nfrom rfcheck.cli import main\n"
+         f"with contextlib.redirect_stdout(io.StringIO()):\n    main(['check', {str(specs[0])!r}, '--json', '-'])\n"
+         "print(len([m for m in ('weasyprint', 'matplotlib') if m in sys.modules]))"],
+        capture_output=True, text=True, env={**os.environ})
+    heavy = int(probe.stdout.strip().splitlines()[-1]) if probe.stdout.strip() else 99
+    rows.append(Row("heavy modules (weasyprint, matplotlib) in a JSON-only run", heavy, "",
+                    "<= 0"))
+    return rows
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--repeat", type=int, default=7)
+    ap.add_argument("--quick", action="store_true", help="run once: checks that it executes")
+    args = ap.parse_args()
+    print_table(measure(args.quick, args.repeat), args.quick)
 
 
 if __name__ == "__main__":

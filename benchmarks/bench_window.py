@@ -1,15 +1,16 @@
 """Benchmark: a 3-layer window in WR-340 over 1001 frequencies, rfcheck vs scikit-rf.
 
 Both sides compute the complex reflection coefficient of the same stack (perfect walls,
-travelling-wave S-parameters); the script prints the times, their ratio (target ≥ 10×)
-and the largest |Γ| difference, all measured in the same run.
+travelling-wave S-parameters), alternating in the same run; the ratio of the medians
+(target ≥ 15×) and the largest |Γ| difference are reported.
 
-Run: python benchmarks/bench_window.py
+Run: python benchmarks/bench_window.py [--quick]
 """
 
 from __future__ import annotations
 
-import timeit
+import sys
+from pathlib import Path
 
 import numpy as np
 import skrf
@@ -17,6 +18,9 @@ from skrf.media import RectangularWaveguide
 from skrf.network import cascade_list
 
 from rfcheck.physics.multilayer import Layer, te10_embedding, window_response
+
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+from harness import Row, alternate, print_table  # noqa: E402
 
 A, B = 86.36e-3, 43.18e-3  # WR-340 (EIA RS-261-B)
 F = np.linspace(2.2e9, 3.3e9, 1001)
@@ -37,19 +41,29 @@ def with_scikit_rf():
     return net.s[:, 0, 0]
 
 
-def best_time(fn, number):
-    return min(timeit.repeat(fn, number=number, repeat=5)) / number
+def looped(fn, number):
+    def run():
+        for _ in range(number):
+            fn()
+    return run
+
+
+def measure(quick: bool = False) -> list[Row]:
+    diff = float(np.max(np.abs(with_rfcheck() - with_scikit_rf())))
+    ref, ours = alternate(with_scikit_rf, looped(with_rfcheck, 20), 1 if quick else 7,
+                          "scikit-rf", "rfcheck (20 calls)")
+    return [Row(f"3-layer WR-340 window, {F.size} frequencies: scikit-rf / rfcheck",
+                ref.median / (ours.median / 20), "x", ">= 15",
+                f"{ref.text()}; {ours.text()}; max |dGamma| {diff:.1e}")]
 
 
 def main():
-    diff = float(np.max(np.abs(with_rfcheck() - with_scikit_rf())))
-    t_ours = best_time(with_rfcheck, 200)
-    t_ref = best_time(with_scikit_rf, 5)
-    print(f"3-layer window, WR-340, {F.size} frequencies")
-    print(f"  rfcheck    {t_ours * 1e3:9.3f} ms")
-    print(f"  scikit-rf  {t_ref * 1e3:9.3f} ms")
-    print(f"  ratio      {t_ref / t_ours:9.1f} x  (target >= 10 x)")
-    print(f"  max |dGamma| {diff:.2e}")
+    import argparse
+
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--quick", action="store_true")
+    args = ap.parse_args()
+    print_table(measure(args.quick), args.quick)
 
 
 if __name__ == "__main__":
