@@ -33,7 +33,11 @@ the rest is reflected or absorbed at the resonance (:mod:`rfcheck.physics.fullwa
 those fractions).
 
 Integrals run on a grid refined between the samples (B and n_e interpolated linearly) and
-clustered geometrically at the target layer, where κ has an integrable singularity.
+clustered geometrically at the target layer, where κ has an integrable singularity. Each
+evanescent layer must be resolved (:func:`rfcheck.physics.fullwave.evanescent_layers`):
+where dropping every other point would move its exponent 2∫κ dz by more than
+EXPONENT_RTOL × max(1, 2∫κ dz), the cells of that layer are split in four, up to
+:data:`MAX_LAYER_REFINEMENTS` times; a layer still unresolved then raises ValueError.
 """
 
 from __future__ import annotations
@@ -47,10 +51,13 @@ from numpy.typing import ArrayLike, NDArray
 from rfcheck.physics.coldplasma import (cma_region, n2_branch, n2_l_wave, n2_o_mode,
                                         n2_r_wave, n2_x_mode)
 from rfcheck.physics.frequencies import critical_density, ecr_field, ion_cyclotron_field
-from rfcheck.physics.fullwave import EvanescentLayers, evanescent_layers
+from rfcheck.physics.fullwave import EXPONENT_RTOL, EvanescentLayers, evanescent_layers
 from rfcheck.physics.species import ion_mixture
 
 __all__ = ["PathAccess", "launch_path_access", "path_landmarks", "mode_n2"]
+
+#: Times the cells of an unresolved evanescent layer are split in four before giving up.
+MAX_LAYER_REFINEMENTS = 6
 
 _CUTOFFS = {"R": ("R cutoff",), "L": ("L cutoff",), "O": ("O cutoff",),
             "X": ("R cutoff", "L cutoff"), "oblique": ("O cutoff", "R cutoff", "L cutoff")}
@@ -141,6 +148,15 @@ def path_landmarks(z: ArrayLike, b: ArrayLike, n_e: ArrayLike, f: float,
     x = np.asarray(n_e, float) / critical_density(f)
     y = np.asarray(b, float) / ecr_field(f)
     return {k: _crossings(z, g) for k, g in _conditions(x, y, theta).items()}
+
+
+def _split_cells(grid, lo, hi, parts=4):
+    """grid with each cell that overlaps [lo, hi] split into `parts` equal cells."""
+    cells = np.nonzero((grid[1:] > lo) & (grid[:-1] < hi))[0]
+    cells = np.unique(np.clip(np.concatenate([cells - 1, cells, cells + 1]), 0, grid.size - 2))
+    frac = np.arange(1, parts) / parts
+    new = (grid[cells, None] + (grid[cells + 1] - grid[cells])[:, None] * frac).ravel()
+    return np.union1d(grid, new)
 
 
 def _refined_grid(s, s_end, refine):
@@ -249,12 +265,21 @@ def launch_path_access(z: ArrayLike, b: ArrayLike, n_e: ArrayLike, f: float, mod
     else:
         sub = np.linspace(0.0, 1.0, refine + 1)[:-1]
         grid = np.append((s[:-1, None] + np.diff(s)[:, None] * sub).ravel(), s[-1])
-    n2_f = n2_at(grid)
-    ok = np.isfinite(n2_f)
-    if ok.sum() >= 2:
-        layers = evanescent_layers(grid[ok], n2_f[ok], f)
-    else:
-        layers = EvanescentLayers(*(np.zeros(0),) * 4, np.zeros(0, bool))
+    for attempt in range(MAX_LAYER_REFINEMENTS + 1):
+        n2_f = n2_at(grid)
+        ok = np.isfinite(n2_f)
+        if ok.sum() < 2:
+            layers = EvanescentLayers(*(np.zeros(0),) * 4, np.zeros(0, bool), np.zeros(0))
+            break
+        final = attempt == MAX_LAYER_REFINEMENTS
+        layers = evanescent_layers(grid[ok], n2_f[ok], f,
+                                   exponent_rtol=EXPONENT_RTOL if final else None)
+        coarse = layers.exponent_change > EXPONENT_RTOL * np.maximum(
+            1.0, 2.0 * layers.kappa_integral)
+        if not coarse.any():
+            break
+        for lo, hi in zip(layers.start[coarse], layers.end[coarse]):
+            grid = _split_cells(grid, lo, hi)
     factor = float(np.exp(-2.0 * layers.kappa_integral.sum()))
 
     first, first_s = "", math.nan
@@ -278,7 +303,7 @@ def launch_path_access(z: ArrayLike, b: ArrayLike, n_e: ArrayLike, f: float, mod
         verdict = "tunnelling" if factor >= blocked_below else "blocked"
 
     mapped = EvanescentLayers(to_z(layers.start), to_z(layers.end), layers.width,
-                              layers.kappa_integral, layers.open_ends)
+                              layers.kappa_integral, layers.open_ends, layers.exponent_change)
     return PathAccess(
         verdict=verdict, mode=key if theta is None else f"{key} at {theta:.4g} rad",
         target=target, resonance_z=to_z(res_s), first_cutoff=first,

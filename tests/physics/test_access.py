@@ -165,3 +165,26 @@ def test_x_mode_full_wave_through_uhr_matches_access_and_budden():
             assert wave.reflected == pytest.approx((1 - acc.tunnelling_factor) ** 2, rel=1e-2)
         else:
             assert wave.reflected < 1e-3
+
+
+def test_unresolved_layer_is_refined_to_the_closed_form():
+    # R wave below the ECR through a field bump Y = 0.5, 0.95, 0.5 on three samples (X = 0.3):
+    # the R-cutoff barrier (Y > 1 - X) rests on one sample, which the resolution check of
+    # evanescent_layers refuses; the path access refines its cells until resolved. Closed
+    # form: with u = 1 - Y linear in z (|dY/dz| = g), 2∫κ dz = 4 (k0/g) [F(X) - F(u_min)],
+    # F(u) = sqrt(u (X - u)) + X asin(sqrt(u/X)) (antiderivative of sqrt((X - u)/u))
+    from rfcheck.physics.fullwave import evanescent_layers
+
+    f, x = 2.45e9, 0.3
+    z = np.array([0.0, 0.05, 0.1])
+    b = ecr_field(f) * np.array([0.5, 0.95, 0.5])
+    n = np.full(3, x * critical_density(f))
+    with pytest.raises(ValueError, match="grid too coarse"):
+        evanescent_layers(z, mode_n2(f, b, n, "R"), f)
+    out = launch_path_access(z, b, n, f, "R", refine=1)
+    k0, g = TWO_PI * f / C, 0.45 / 0.05
+    big_f = lambda u: np.sqrt(u * (x - u)) + x * np.arcsin(np.sqrt(u / x))  # noqa: E731
+    exponent = 4 * (k0 / g) * (big_f(x) - big_f(0.05))
+    assert out.verdict == "no-resonance" and out.layers.start.size == 1
+    assert -np.log(out.tunnelling_factor) == pytest.approx(exponent, rel=1e-3)
+    assert out.layers.exponent_change[0] <= 1e-2 * exponent
