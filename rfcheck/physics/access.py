@@ -33,11 +33,18 @@ the rest is reflected or absorbed at the resonance (:mod:`rfcheck.physics.fullwa
 those fractions).
 
 Integrals run on a grid refined between the samples (B and n_e interpolated linearly) and
-clustered geometrically at the target layer, where κ has an integrable singularity. Each
-evanescent layer must be resolved (:func:`rfcheck.physics.fullwave.evanescent_layers`):
-where dropping every other point would move its exponent 2∫κ dz by more than
-EXPONENT_RTOL × max(1, 2∫κ dz), the cells of that layer are split in four, up to
-:data:`MAX_LAYER_REFINEMENTS` times; a layer still unresolved then raises ValueError.
+clustered geometrically at the target layer, where κ has an integrable singularity. The grid
+stops where the target's defining condition (above; for an ion cyclotron layer
+|B − B_ci| / (B + B_ci)) falls below :data:`ROUNDING_FLOOR` relative to its terms: closer to a
+resonance the sign of n², which runs through infinity there, is set by the rounding of B and
+n_e rather than by the profile, and a sample there would open a layer of zero width (an X
+wave from the high-field side, say, "tunnelling" into the upper-hybrid layer). The part of a
+genuine layer left out is ~ 2 k0 √(A d) for n² ≈ −A/d at distance d (a few 1e-6 of the
+exponent for a field scale length of 0.1 m at GHz frequencies). Each evanescent layer must
+be resolved (:func:`rfcheck.physics.fullwave.evanescent_layers`): where dropping every other
+point would move its exponent 2∫κ dz by more than EXPONENT_RTOL × max(1, 2∫κ dz), the cells
+of that layer are split in four, up to :data:`MAX_LAYER_REFINEMENTS` times; a layer still
+unresolved then raises ValueError.
 """
 
 from __future__ import annotations
@@ -56,6 +63,9 @@ from rfcheck.physics.species import ion_mixture
 
 __all__ = ["PathAccess", "launch_path_access", "path_landmarks", "mode_n2"]
 
+#: Relative residual of the target layer's condition below which the path is not sampled:
+#: rounding of B and n_e (relative 1e-16) decides the sign of n² there (margin ~1e3).
+ROUNDING_FLOOR = 1e-12
 #: Times the cells of an unresolved evanescent layer are split in four before giving up.
 MAX_LAYER_REFINEMENTS = 6
 
@@ -116,6 +126,16 @@ def _conditions(x, y, theta):
     if theta is not None:
         c2 = math.cos(theta) ** 2
         out["resonance cone"] = (1.0 - y * y) - x * (1.0 - y * y * c2)
+    return out
+
+
+def _condition_scales(x, y, theta):
+    """Sum of the magnitudes of the terms of each condition of :func:`_conditions`."""
+    out = {"ECR": y + 1.0, "UHR": 1.0 + y * y + x, "R cutoff": 1.0 + y + x,
+           "L cutoff": 1.0 + y + x, "O cutoff": 1.0 + x}
+    if theta is not None:
+        c2 = math.cos(theta) ** 2
+        out["resonance cone"] = (1.0 + y * y) + x * (1.0 + y * y * c2)
     return out
 
 
@@ -257,11 +277,23 @@ def launch_path_access(z: ArrayLike, b: ArrayLike, n_e: ArrayLike, f: float, mod
         target = "resonance cone" if resonant else "ECR"
         res_s = np.array(resonant) if resonant else landmarks_s["ECR"]
 
+    def target_residual(sq):
+        """Relative residual of the target layer's defining condition at path points sq."""
+        if key == "L" and theta is None:
+            bq = np.interp(sq, s, bs)
+            return np.min([np.abs(bq - bc) / (bq + bc) for bc in
+                           (ion_cyclotron_field(f, sp) for sp, _ in species)], axis=0)
+        xq, yq = np.interp(sq, s, xs), np.interp(sq, s, ys)
+        return np.abs(_conditions(xq, yq, theta)[target]) / _condition_scales(xq, yq, theta)[target]
+
     s_end = float(res_s[0]) if res_s.size else float(s[-1])
     if res_s.size and s_end <= 0.0:
         grid = np.zeros(0)
     elif res_s.size:
         grid = _refined_grid(s, s_end, refine)
+        # stop short of the rounding zone of the target (module docstring)
+        resolved = np.nonzero(target_residual(grid) >= ROUNDING_FLOOR)[0]
+        grid = grid[:resolved[-1] + 1] if resolved.size else grid[:0]
     else:
         sub = np.linspace(0.0, 1.0, refine + 1)[:-1]
         grid = np.append((s[:-1, None] + np.diff(s)[:, None] * sub).ravel(), s[-1])
