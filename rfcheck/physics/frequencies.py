@@ -173,7 +173,11 @@ def lower_hybrid_frequency(n_e: ArrayLike, b: ArrayLike, ion: str | Species) -> 
 def r_cutoff_frequency(n_e: ArrayLike, b: ArrayLike) -> NDArray:
     """R-wave cutoff frequency (R = 0), electrons only, in Hz.
 
-    f_R = [f_ce + sqrt(f_ce^2 + 4 f_pe^2)] / 2          (Stix 1992; Chen 2016, ch. 4)
+    f_R = [f_ce + sqrt(f_ce^2 + 4 f_pe^2)] / 2
+
+    the positive root of R = 1 - f_pe^2 / (f (f - f_ce)) = 0 (Stix 1992, ch. 1, R with the
+    signed electron cyclotron frequency -f_ce; D.G. Swanson, Plasma Waves, 2nd ed. (IOP 2003),
+    ch. 2, cutoff frequencies, from memory)
 
     Parameters
     ----------
