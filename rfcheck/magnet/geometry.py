@@ -13,7 +13,14 @@ Conventions
   largest on-axis |B| between z_start (z_end) and the on-axis minimum, inside the chamber.
 * B_min is the smallest |B| in the plasma volume r <= R, z_start <= z <= z_end (a grid
   search refined by nested zooming); it may lie off axis.
-* B_rad is the largest |B| over azimuth on the wall r = R at the axial position of B_min.
+* B_rad is the field of the multipole sources alone on the wall r = R at the axial position
+  of B_min, largest over azimuth: the radial field of the published minimum-B ratios. The
+  azimuth search resolves the segmentation ripple of a segmented multipole (GeometryGrid
+  .pitch_azimuths samples per segment pitch, then refinement); for an array of M annular
+  segments the 2-D bore field holds the harmonics N + jM (N = poles/2, j >= 0), so |B| of
+  the array alone repeats every 2 pi / M and peaks at the joints between segments. Without
+  a multipole B_rad is 0. The total |B| at the same place (largest over azimuth, with the
+  solenoids' field) is reported beside it as the wall total.
 * The last closed |B| surface is the smallest |B| on the chamber boundary (the wall and
   both end planes): every |B| surface below it closes inside the chamber.
 * Mirror ratio: min(B_inj, B_ext) / (on-axis minimum of |B|): the weaker mirror governs.
@@ -31,12 +38,14 @@ from scipy.interpolate import CubicSpline
 from scipy.optimize import brentq, minimize_scalar
 
 from rfcheck.model import Chamber
+from rfcheck.physics.constants import TWO_PI
 
 __all__ = [
     "GeometryGrid", "FieldPoint", "AxisProfile", "Crossing", "WallField", "RZField",
     "TrapGeometry", "MinBRatios", "FieldUndefinedError",
     "axis_profile", "axis_profiles", "axial_extrema", "resonance_crossings", "wall_field",
-    "trap_geometry", "trap_geometries", "min_b_ratios", "rz_field",
+    "multipole_field", "radial_wall_fields", "trap_geometry", "trap_geometries", "min_b_ratios",
+    "rz_field",
 ]
 
 
@@ -51,6 +60,7 @@ class GeometryGrid:
     axis_points: int = 801
     wall_z: int = 81
     azimuths: int = 36  # over 2 pi, for models that depend on azimuth
+    pitch_azimuths: int = 8  # per segment pitch of a multipole, for the wall maxima (B_rad)
     volume_r: int = 9
     volume_z: int = 41
     volume_azimuths: int = 12
@@ -117,17 +127,23 @@ class RZField:
 
 @dataclass(frozen=True)
 class MinBRatios:
-    """Field ratios of a minimum-B trap over B_ECR."""
+    """Field ratios of a minimum-B trap over B_ECR; `radial` is B_rad (the multipole field at
+    the wall), `wall_total` the total |B| at the same place (shown beside it, not compared)."""
 
     injection: float
     extraction: float
     radial: float
     minimum: float
+    wall_total: float
 
 
 @dataclass(frozen=True)
 class TrapGeometry:
-    """The characteristic fields of one current scale (see the module conventions)."""
+    """The characteristic fields of one current scale (see the module conventions).
+
+    `radial_wall` is B_rad, the multipole field alone at the wall (b = 0 without a
+    multipole); `wall_total` the largest total |B| on the wall at the same axial position.
+    """
 
     scale: float
     axis_min: FieldPoint
@@ -137,6 +153,7 @@ class TrapGeometry:
     radial_wall: FieldPoint
     last_closed: FieldPoint
     mirror_ratio: float
+    wall_total: FieldPoint
 
 
 # --------------------------------------------------------------------------- helpers
@@ -162,13 +179,17 @@ def _scales(scales) -> np.ndarray:
     return s
 
 
-def _zoom(model, scales, start, step, lower, upper, periodic, levels, maximise=False):
+def _zoom(model, scales, start, step, lower, upper, periodic, levels, maximise=False,
+          field=None):
     """Nested-grid refinement of min (or max) |B| over cylindrical coordinates.
 
     `start` (S, 3) holds (r, phi, z) per scale; `step` (3,) the initial half-window; a
     zero step freezes a coordinate. Each level evaluates a 5-point grid per free
-    coordinate within +/- step around the best point, then halves the step.
+    coordinate within +/- step around the best point, then halves the step. `field`
+    (points (S, K, 3) -> B (S, K, 3)) replaces the model's total field at each scale.
     """
+    if field is None:
+        field = lambda p: model.field_per_scale(p, scales)  # noqa: E731
     free = np.nonzero(step > 0)[0]
     axes = np.meshgrid(*([np.linspace(-1.0, 1.0, 5)] * len(free)), indexing="ij")
     unit = np.zeros((axes[0].size if len(free) else 1, 3))
@@ -181,8 +202,8 @@ def _zoom(model, scales, start, step, lower, upper, periodic, levels, maximise=F
         cand = x[:, None, :] + unit[None] * step
         bounded = ~periodic
         cand[..., bounded] = np.clip(cand[..., bounded], lower[bounded], upper[bounded])
-        b = np.linalg.norm(model.field_per_scale(_cartesian(cand[..., 0], cand[..., 1],
-                                                            cand[..., 2]), scales), axis=-1)
+        b = np.linalg.norm(field(_cartesian(cand[..., 0], cand[..., 1], cand[..., 2])),
+                           axis=-1)
         b = _defined(b, "chamber")
         best = np.argmax(b, axis=1) if maximise else np.argmin(b, axis=1)
         x = cand[rows, best]
@@ -284,6 +305,87 @@ def _azimuths(model, n: int) -> np.ndarray:
     return np.linspace(0, period, count, endpoint=False)
 
 
+def _pitch_azimuths(model, grid: GeometryGrid) -> np.ndarray:
+    """Azimuths over one symmetry period of |B| that resolve the segment pitch 2 pi / M of
+    every multipole (grid.pitch_azimuths per pitch) and keep at least the sweep's density."""
+    if model.axisymmetric:
+        return np.array([0.0])
+    period = getattr(model, "azimuthal_period", 2 * np.pi)
+    pitch = min((TWO_PI / s.mp.segments for s in _multipole_sources(model)), default=TWO_PI)
+    count = max(6, int(np.ceil(grid.azimuths * period / TWO_PI)),
+                int(np.ceil(grid.pitch_azimuths * period / pitch - 1e-9)))
+    return np.linspace(0, period, count, endpoint=False)
+
+
+def _multipole_sources(model) -> list:
+    """The field model's sources that depend on azimuth (the multipoles)."""
+    return [s for s in model.sources if not s.axisymmetric]
+
+
+def multipole_field(model, points) -> np.ndarray:
+    """B (T) of the multipole sources alone at Cartesian points (..., 3) in m.
+
+    Permanent magnets: independent of the current scale. Zero for a model without a
+    multipole.
+    """
+    p = np.asarray(points, dtype=float)
+    flat = np.ascontiguousarray(p.reshape(-1, 3))
+    out = np.zeros_like(flat)
+    for src in _multipole_sources(model):
+        out += src.field(flat)
+    return out.reshape(p.shape)
+
+
+def radial_wall_fields(model, chamber: Chamber, z, grid: GeometryGrid | None = None,
+                       scales=None) -> tuple[tuple[FieldPoint, ...], tuple[FieldPoint, ...]]:
+    """B_rad and the total |B| on the wall r = R at axial positions z, largest over azimuth.
+
+    B_rad is the magnitude of the multipole field alone (:func:`multipole_field`); the total
+    is the field of all sources at the current scale paired with each z (`scales`, default
+    1). Both maxima start from azimuths that resolve the segment pitch of every multipole
+    (``grid.pitch_azimuths`` per pitch 2 pi / M, over one symmetry period of |B|) and are
+    refined by nested zooming to ~1e-3 of the sampling step, so the segmentation ripple of
+    |B| (harmonics N + jM of an M-segment array, peaks at the joints between segments) is
+    resolved. Without a multipole B_rad is 0 (at azimuth 0).
+
+    Returns
+    -------
+    (radial, total) : tuples of FieldPoint, one per z, where = "wall".
+    """
+    grid = grid or GeometryGrid()
+    z = np.atleast_1d(np.asarray(z, dtype=float))
+    s = np.ones(len(z)) if scales is None else _scales(scales)
+    if len(s) != len(z):
+        raise ValueError("scales must pair one to one with z")
+    radius = chamber.radius
+    lower = np.array([0.0, -np.inf, chamber.z_start])
+    upper = np.array([radius, np.inf, chamber.z_end])
+    periodic = np.array([False, True, False])
+    phi = _pitch_azimuths(model, grid)
+    step = np.array([0.0, _spacing(phi), 0.0])
+    points = _cartesian(radius, phi[None, :], z[:, None])
+
+    def best(field):
+        b = _defined(np.linalg.norm(field(points), axis=-1), "wall")
+        start = np.stack([np.full(len(z), radius), phi[np.argmax(b, axis=1)], z], axis=-1)
+        if len(phi) == 1:
+            return start, b[:, 0]
+        return _zoom(model, s, start, step, lower, upper, periodic, grid.zoom_levels,
+                     maximise=True, field=field)
+
+    def wall(x, v):
+        return tuple(FieldPoint(float(v[i]), radius, float(x[i, 1]) % TWO_PI, float(x[i, 2]),
+                                "wall") for i in range(len(z)))
+
+    x_t, b_t = best(lambda p: model.field_per_scale(p, s))
+    if _multipole_sources(model):
+        x_r, b_r = best(lambda p: multipole_field(model, p))
+    else:
+        x_r = np.stack([np.full(len(z), radius), np.zeros(len(z)), z], axis=-1)
+        b_r = np.zeros(len(z))
+    return wall(x_r, b_r), wall(x_t, b_t)
+
+
 def wall_field(model, chamber: Chamber, scale: float = 1.0,
                grid: GeometryGrid | None = None) -> WallField:
     """|B| on the wall r = R over a z x azimuth grid (one azimuth for axisymmetric models)."""
@@ -323,7 +425,6 @@ def trap_geometries(model, chamber: Chamber, scales,
     """Trap geometry for each current scale; grids are evaluated once for all scales."""
     grid = grid or GeometryGrid()
     s = _scales(scales)
-    two_pi = 2 * np.pi
     lower = np.array([0.0, -np.inf, chamber.z_start])
     upper = np.array([chamber.radius, np.inf, chamber.z_end])
     periodic = np.array([False, True, False])
@@ -337,16 +438,11 @@ def trap_geometries(model, chamber: Chamber, scales,
     step = np.array([_spacing(r), _spacing(phi), _spacing(z)])
     vmin, vmin_b = _zoom(model, s, start, step, lower, upper, periodic, levels)
 
-    # radial field: max over azimuth on the wall at z of B_min
-    phi_w = _azimuths(model, grid.azimuths)
-    b_w = model.field_per_scale(_cartesian(chamber.radius, phi_w[None, :], vmin[:, 2:3]), s)
-    b_w = _defined(np.linalg.norm(b_w, axis=-1), "wall")
-    start = np.stack([np.full(len(s), chamber.radius), phi_w[np.argmax(b_w, axis=1)],
-                      vmin[:, 2]], axis=-1)
-    rad, rad_b = _zoom(model, s, start, np.array([0.0, _spacing(phi_w), 0.0]), lower, upper,
-                       periodic, levels, maximise=True)
+    # B_rad (multipole alone) and the total |B|: max over azimuth on the wall at z of B_min
+    radial, total = radial_wall_fields(model, chamber, vmin[:, 2], grid, s)
 
     # last closed surface: smallest |B| on the wall and on both end planes
+    phi_w = _azimuths(model, grid.azimuths)
     z_w = np.linspace(chamber.z_start, chamber.z_end, grid.wall_z)
     r_e = np.linspace(0.0, chamber.radius, grid.end_r)
     pieces = [("wall", [chamber.radius], z_w, np.array([0.0, _spacing(phi_w), _spacing(z_w)])),
@@ -366,25 +462,28 @@ def trap_geometries(model, chamber: Chamber, scales,
         results.append(TrapGeometry(
             scale=float(s[i]), axis_min=low, injection_max=inj, extraction_max=ext,
             volume_min=_point(vmin[i], vmin_b[i], "volume"),
-            radial_wall=FieldPoint(float(rad_b[i]), chamber.radius, float(rad[i, 1]) % two_pi,
-                                   float(rad[i, 2]), "wall"),
-            last_closed=_point(x, b, where),
-            mirror_ratio=min(inj.b, ext.b) / low.b if low.b > 0 else np.inf))
+            radial_wall=radial[i], last_closed=_point(x, b, where),
+            mirror_ratio=min(inj.b, ext.b) / low.b if low.b > 0 else np.inf,
+            wall_total=total[i]))
     return tuple(results)
 
 
 def trap_geometry(model, chamber: Chamber, scale: float = 1.0,
                   grid: GeometryGrid | None = None) -> TrapGeometry:
-    """Trap geometry (extrema, B_rad, last closed |B|, mirror ratio) at one current scale."""
+    """Trap geometry (extrema, B_rad, wall total, last closed |B|, mirror ratio) at one scale."""
     return trap_geometries(model, chamber, [scale], grid)[0]
 
 
 def min_b_ratios(trap: TrapGeometry, b_ecr: float) -> MinBRatios:
-    """B_inj/B_ECR, B_ext/B_ECR, B_rad/B_ECR and B_min/B_ECR of a minimum-B trap.
+    """B_inj/B_ECR, B_ext/B_ECR, B_rad/B_ECR and B_min/B_ECR of a minimum-B trap, and the
+    total |B| at the wall over B_ECR beside B_rad.
 
     The semi-empirical ranges these are compared with (B_inj ~ 3-4, B_rad >= 2, B_ext ~ 2,
     B_min ~ 0.8 times B_ECR) are published by D. Hitz et al., Rev. Sci.
     Instrum. 73 (2002) 509 and V. Mironov et al., arXiv:2012.08776 (2020); the rules apply them.
+    Their B_rad is the radial (multipole) field at the chamber wall, which is what
+    ``trap.radial_wall`` holds.
     """
     return MinBRatios(trap.injection_max.b / b_ecr, trap.extraction_max.b / b_ecr,
-                      trap.radial_wall.b / b_ecr, trap.volume_min.b / b_ecr)
+                      trap.radial_wall.b / b_ecr, trap.volume_min.b / b_ecr,
+                      trap.wall_total.b / b_ecr)

@@ -33,7 +33,18 @@ the rest is reflected or absorbed at the resonance (:mod:`rfcheck.physics.fullwa
 those fractions).
 
 Integrals run on a grid refined between the samples (B and n_e interpolated linearly) and
-clustered geometrically at the target layer, where κ has an integrable singularity.
+clustered geometrically at the target layer, where κ has an integrable singularity. The grid
+stops where the target's defining condition (above; for an ion cyclotron layer
+|B − B_ci| / (B + B_ci)) falls below :data:`ROUNDING_FLOOR` relative to its terms: closer to a
+resonance the sign of n², which runs through infinity there, is set by the rounding of B and
+n_e rather than by the profile, and a sample there would open a layer of zero width (an X
+wave from the high-field side, say, "tunnelling" into the upper-hybrid layer). The part of a
+genuine layer left out is ~ 2 k0 √(A d) for n² ≈ −A/d at distance d (a few 1e-6 of the
+exponent for a field scale length of 0.1 m at GHz frequencies). Each evanescent layer must
+be resolved (:func:`rfcheck.physics.fullwave.evanescent_layers`): where dropping every other
+point would move its exponent 2∫κ dz by more than EXPONENT_RTOL × max(1, 2∫κ dz), the cells
+of that layer are split in four, up to :data:`MAX_LAYER_REFINEMENTS` times; a layer still
+unresolved then raises ValueError.
 """
 
 from __future__ import annotations
@@ -47,10 +58,16 @@ from numpy.typing import ArrayLike, NDArray
 from rfcheck.physics.coldplasma import (cma_region, n2_branch, n2_l_wave, n2_o_mode,
                                         n2_r_wave, n2_x_mode)
 from rfcheck.physics.frequencies import critical_density, ecr_field, ion_cyclotron_field
-from rfcheck.physics.fullwave import EvanescentLayers, evanescent_layers
+from rfcheck.physics.fullwave import EXPONENT_RTOL, EvanescentLayers, evanescent_layers
 from rfcheck.physics.species import ion_mixture
 
 __all__ = ["PathAccess", "launch_path_access", "path_landmarks", "mode_n2"]
+
+#: Relative residual of the target layer's condition below which the path is not sampled:
+#: rounding of B and n_e (relative 1e-16) decides the sign of n² there (margin ~1e3).
+ROUNDING_FLOOR = 1e-12
+#: Times the cells of an unresolved evanescent layer are split in four before giving up.
+MAX_LAYER_REFINEMENTS = 6
 
 _CUTOFFS = {"R": ("R cutoff",), "L": ("L cutoff",), "O": ("O cutoff",),
             "X": ("R cutoff", "L cutoff"), "oblique": ("O cutoff", "R cutoff", "L cutoff")}
@@ -112,6 +129,16 @@ def _conditions(x, y, theta):
     return out
 
 
+def _condition_scales(x, y, theta):
+    """Sum of the magnitudes of the terms of each condition of :func:`_conditions`."""
+    out = {"ECR": y + 1.0, "UHR": 1.0 + y * y + x, "R cutoff": 1.0 + y + x,
+           "L cutoff": 1.0 + y + x, "O cutoff": 1.0 + x}
+    if theta is not None:
+        c2 = math.cos(theta) ** 2
+        out["resonance cone"] = (1.0 + y * y) + x * (1.0 + y * y * c2)
+    return out
+
+
 def _crossings(s, g, g_at=None):
     """Positions where g changes sign along s, in increasing order: linear interpolation
     of the samples, or, with ``g_at`` (g at any point), bisection to full precision."""
@@ -141,6 +168,15 @@ def path_landmarks(z: ArrayLike, b: ArrayLike, n_e: ArrayLike, f: float,
     x = np.asarray(n_e, float) / critical_density(f)
     y = np.asarray(b, float) / ecr_field(f)
     return {k: _crossings(z, g) for k, g in _conditions(x, y, theta).items()}
+
+
+def _split_cells(grid, lo, hi, parts=4):
+    """grid with each cell that overlaps [lo, hi] split into `parts` equal cells."""
+    cells = np.nonzero((grid[1:] > lo) & (grid[:-1] < hi))[0]
+    cells = np.unique(np.clip(np.concatenate([cells - 1, cells, cells + 1]), 0, grid.size - 2))
+    frac = np.arange(1, parts) / parts
+    new = (grid[cells, None] + (grid[cells + 1] - grid[cells])[:, None] * frac).ravel()
+    return np.union1d(grid, new)
 
 
 def _refined_grid(s, s_end, refine):
@@ -241,20 +277,41 @@ def launch_path_access(z: ArrayLike, b: ArrayLike, n_e: ArrayLike, f: float, mod
         target = "resonance cone" if resonant else "ECR"
         res_s = np.array(resonant) if resonant else landmarks_s["ECR"]
 
+    def target_residual(sq):
+        """Relative residual of the target layer's defining condition at path points sq."""
+        if key == "L" and theta is None:
+            bq = np.interp(sq, s, bs)
+            return np.min([np.abs(bq - bc) / (bq + bc) for bc in
+                           (ion_cyclotron_field(f, sp) for sp, _ in species)], axis=0)
+        xq, yq = np.interp(sq, s, xs), np.interp(sq, s, ys)
+        return np.abs(_conditions(xq, yq, theta)[target]) / _condition_scales(xq, yq, theta)[target]
+
     s_end = float(res_s[0]) if res_s.size else float(s[-1])
     if res_s.size and s_end <= 0.0:
         grid = np.zeros(0)
     elif res_s.size:
         grid = _refined_grid(s, s_end, refine)
+        # stop short of the rounding zone of the target (module docstring)
+        resolved = np.nonzero(target_residual(grid) >= ROUNDING_FLOOR)[0]
+        grid = grid[:resolved[-1] + 1] if resolved.size else grid[:0]
     else:
         sub = np.linspace(0.0, 1.0, refine + 1)[:-1]
         grid = np.append((s[:-1, None] + np.diff(s)[:, None] * sub).ravel(), s[-1])
-    n2_f = n2_at(grid)
-    ok = np.isfinite(n2_f)
-    if ok.sum() >= 2:
-        layers = evanescent_layers(grid[ok], n2_f[ok], f)
-    else:
-        layers = EvanescentLayers(*(np.zeros(0),) * 4, np.zeros(0, bool))
+    for attempt in range(MAX_LAYER_REFINEMENTS + 1):
+        n2_f = n2_at(grid)
+        ok = np.isfinite(n2_f)
+        if ok.sum() < 2:
+            layers = EvanescentLayers(*(np.zeros(0),) * 4, np.zeros(0, bool), np.zeros(0))
+            break
+        final = attempt == MAX_LAYER_REFINEMENTS
+        layers = evanescent_layers(grid[ok], n2_f[ok], f,
+                                   exponent_rtol=EXPONENT_RTOL if final else None)
+        coarse = layers.exponent_change > EXPONENT_RTOL * np.maximum(
+            1.0, 2.0 * layers.kappa_integral)
+        if not coarse.any():
+            break
+        for lo, hi in zip(layers.start[coarse], layers.end[coarse]):
+            grid = _split_cells(grid, lo, hi)
     factor = float(np.exp(-2.0 * layers.kappa_integral.sum()))
 
     first, first_s = "", math.nan
@@ -278,7 +335,7 @@ def launch_path_access(z: ArrayLike, b: ArrayLike, n_e: ArrayLike, f: float, mod
         verdict = "tunnelling" if factor >= blocked_below else "blocked"
 
     mapped = EvanescentLayers(to_z(layers.start), to_z(layers.end), layers.width,
-                              layers.kappa_integral, layers.open_ends)
+                              layers.kappa_integral, layers.open_ends, layers.exponent_change)
     return PathAccess(
         verdict=verdict, mode=key if theta is None else f"{key} at {theta:.4g} rad",
         target=target, resonance_z=to_z(res_s), first_cutoff=first,

@@ -1,7 +1,9 @@
 """The electron-only CMA diagram: which region an (X, Y) point lies in and which waves propagate.
 
-References: T.H. Stix, *Waves in Plasmas* (AIP 1992), ch. 2; F.F. Chen, *Introduction to
-Plasma Physics and Controlled Fusion*, 3rd ed. (Springer 2016), ch. 4.
+References: T.H. Stix, *Waves in Plasmas* (AIP 1992), ch. 2 (the CMA diagram, drawn there
+in X = w_pe^2/w^2 and Y^2 = w_ce^2/w^2 with ions; its electron-only bounds are those below);
+D.G. Swanson, *Plasma Waves*, 2nd ed. (IOP 2003), ch. 2 (the same diagram and bounds, from
+memory).
 """
 
 from __future__ import annotations
@@ -76,8 +78,9 @@ def cma_region(x: ArrayLike, y: ArrayLike) -> CmaRegion:
 
     References
     ----------
-    Stix (1992), ch. 2 (CMA diagram); F.F. Chen, *Introduction to Plasma Physics and
-    Controlled Fusion*, 3rd ed. (Springer, 2016), ch. 4.
+    Stix (1992), ch. 2 (CMA diagram); Swanson (2003), ch. 2 (from memory). Both write the
+    cutoffs P = 0, R = 0, L = 0 and the resonances S = 0 (90 deg), R -> inf (Y = 1) in these
+    variables; the sign of Y (electron charge) does not enter the electron-only bounds.
     """
     x = np.asarray(x, dtype=float)
     y = np.abs(np.asarray(y, dtype=float))

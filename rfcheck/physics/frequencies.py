@@ -126,12 +126,19 @@ def upper_hybrid_frequency(n_e: ArrayLike, b: ArrayLike) -> NDArray:
 
 
 def lower_hybrid_frequency(n_e: ArrayLike, b: ArrayLike, ion: str | Species) -> NDArray:
-    """Lower-hybrid frequency in Hz, full cold form for electrons and one ion species.
+    """Lower-hybrid frequency in Hz: the exact lower root of S = 0 for electrons and one ion species.
 
-    1 / w_LH^2 = 1 / (W_ci^2 + w_pi^2) + 1 / (W_ci w_ce)
+    With n_i = n_e / Z (quasi-neutral), S = 1 - w_pe^2/(w^2 - w_ce^2) - w_pi^2/(w^2 - W_ci^2)
+    (Stix 1992, ch. 1) vanishes where u = w^2 solves
 
-    with the ion density n_i = n_e / Z (quasi-neutral). In a dense plasma (w_pe >> w_ce) this
-    tends to sqrt(W_ci w_ce); in a tenuous one to sqrt(W_ci^2 + w_pi^2). Returns 0 at B = 0.
+        u^2 - (w_ce^2 + W_ci^2 + w_pe^2 + w_pi^2) u + (w_ce^2 W_ci^2 + w_pe^2 W_ci^2 + w_pi^2 w_ce^2) = 0;
+
+    the upper root is the upper hybrid, the lower one, taken here in the cancellation-free
+    form u_LH = 2c / (b + sqrt(b^2 - 4c)), the lower hybrid. The often quoted
+    1/w_LH^2 = 1/(W_ci^2 + w_pi^2) + 1/(W_ci w_ce) (Stix 1992, ch. 2) drops terms of order
+    Z m_e/m_i and differs from this root by up to about that (5e-4 for H+); its dense limit is
+    sqrt(W_ci w_ce), its tenuous limit sqrt(W_ci^2 + w_pi^2). Returns 0 at B = 0 (S = 0 has
+    then only the plasma-frequency root) and the ion cyclotron frequency at n_e = 0.
 
     Parameters
     ----------
@@ -144,25 +151,33 @@ def lower_hybrid_frequency(n_e: ArrayLike, b: ArrayLike, ion: str | Species) -> 
 
     References
     ----------
-    Stix (1992), ch. 2; NRL Plasma Formulary (2019), p. 28.
+    T. H. Stix, Waves in Plasmas (AIP 1992), ch. 1 (S) and ch. 2 (hybrid resonances, from
+    memory); NRL Plasma Formulary (2019), p. 28 (the approximate form).
     """
     sp = _ion(ion)
     z = abs(sp.charge_number)
     b = np.abs(np.asarray(b, dtype=float))
     n_e = np.asarray(n_e, dtype=float)
-    w_ci = z * E_CHARGE / sp.mass * b
-    w_ce = _WCE_PER_T * b
+    w_ci2 = (z * E_CHARGE / sp.mass * b) ** 2
+    w_ce2 = (_WCE_PER_T * b) ** 2
+    w_pe2 = _WPE2_PER_N * n_e
     w_pi2 = (z * E_CHARGE) ** 2 / (EPS0 * sp.mass) * (n_e / z)
+    lin = w_ce2 + w_ci2 + w_pe2 + w_pi2
+    const = w_ce2 * w_ci2 + w_pe2 * w_ci2 + w_pi2 * w_ce2
     with np.errstate(divide="ignore", invalid="ignore"):
-        inv = 1.0 / (w_ci**2 + w_pi2) + 1.0 / (w_ci * w_ce)
-        out = np.where(b > 0, 1.0 / np.sqrt(inv), 0.0)
+        u = 2.0 * const / (lin + np.sqrt(np.maximum(lin * lin - 4.0 * const, 0.0)))
+        out = np.where(b > 0, np.sqrt(u), 0.0)
     return _scalar(out / TWO_PI)
 
 
 def r_cutoff_frequency(n_e: ArrayLike, b: ArrayLike) -> NDArray:
     """R-wave cutoff frequency (R = 0), electrons only, in Hz.
 
-    f_R = [f_ce + sqrt(f_ce^2 + 4 f_pe^2)] / 2          (Stix 1992; Chen 2016, ch. 4)
+    f_R = [f_ce + sqrt(f_ce^2 + 4 f_pe^2)] / 2
+
+    the positive root of R = 1 - f_pe^2 / (f (f - f_ce)) = 0 (Stix 1992, ch. 1, R with the
+    signed electron cyclotron frequency -f_ce; D.G. Swanson, Plasma Waves, 2nd ed. (IOP 2003),
+    ch. 2, cutoff frequencies, from memory)
 
     Parameters
     ----------

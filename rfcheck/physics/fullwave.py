@@ -89,13 +89,16 @@ class SlabResponse(NamedTuple):
 
 class EvanescentLayers(NamedTuple):
     """Intervals where Re n² < 0 (m); kappa_integral = ∫ κ dz per layer (NaN without a
-    frequency); open_ends is True where the layer runs into an end of the grid."""
+    frequency); open_ends is True where the layer runs into an end of the grid;
+    exponent_change is the resolution estimate of each layer's exponent 2∫κ dz: how much it
+    moves when every other sample is dropped (NaN without a frequency, None where unknown)."""
 
     start: NDArray
     end: NDArray
     width: NDArray
     kappa_integral: NDArray
     open_ends: NDArray
+    exponent_change: NDArray | None = None
 
 
 # --------------------------------------------------------------------------- profiles
@@ -441,9 +444,33 @@ def _kappa_segments(z, p):
     return np.where(both, full, np.where(hi > 0, part, 0.0))
 
 
-def evanescent_layers(z: ArrayLike, n2: ArrayLike,
-                      frequency: float | None = None) -> EvanescentLayers:
+#: Default resolution demand on a layer's exponent 2∫κ dz: it may move by at most
+#: EXPONENT_RTOL * max(1, 2∫κ dz) when every other sample is dropped (the factor to ~1 %).
+EXPONENT_RTOL = 1e-2
+
+
+def _layer_kappa(z, p, start, end, k0):
+    """k0 ∫ √max(p, 0) dz over the segments of z that overlap each [start, end]."""
+    seg = _kappa_segments(z, p)
+    return np.array([k0 * seg[(z[1:] > a) & (z[:-1] < b)].sum() for a, b in zip(start, end)],
+                    float)
+
+
+def evanescent_layers(z: ArrayLike, n2: ArrayLike, frequency: float | None = None, *,
+                      exponent_rtol: float | None = EXPONENT_RTOL) -> EvanescentLayers:
     """Intervals of the grid where Re n² < 0, edges interpolated linearly.
+
+    The samples are taken as a piecewise-linear n²; for a sampled smooth profile that is an
+    approximation whose quality depends on the grid. With a frequency each layer's exponent
+    2∫κ dz, κ = k0 √(−Re n²), is integrated exactly for the piecewise-linear n², and also
+    with every other sample dropped (first and last kept): the change, ``exponent_change``,
+    estimates the grid error (it is about 3 times the error of the full grid where the
+    error falls as h², e.g. a barrier between two cutoffs; less where a layer ends at a
+    resonance, n² ~ 1/d, which needs samples clustered geometrically towards it). A layer
+    that is not resolved - its exponent moves by more than ``exponent_rtol`` × max(1, 2∫κ dz),
+    including a layer carried by a single sample that the thinned grid loses - raises
+    ValueError rather than returning a factor the grid cannot support. A layer that runs
+    into an end of the grid is integrated up to that end (``open_ends``).
 
     Parameters
     ----------
@@ -452,12 +479,21 @@ def evanescent_layers(z: ArrayLike, n2: ArrayLike,
     n2 : array_like
         n² samples on the grid.
     frequency : float, optional
-        Hz; gives ∫ κ dz per layer with κ = k0 √(−Re n²) (n² piecewise linear, integrated
-        exactly). Without it ``kappa_integral`` is NaN.
+        Hz; gives ∫ κ dz per layer (n² piecewise linear, integrated exactly) and the
+        resolution check. Without it ``kappa_integral`` and ``exponent_change`` are NaN.
+    exponent_rtol : float or None, optional
+        Resolution demand (default :data:`EXPONENT_RTOL`); None takes the samples as the
+        exact, piecewise-linear n² and skips the check (``exponent_change`` is still given).
 
     Returns
     -------
     EvanescentLayers
+
+    Raises
+    ------
+    ValueError
+        For a grid too coarse for a layer (with a frequency and ``exponent_rtol`` set): the
+        message names the layer, its samples and both exponents.
     """
     z = np.asarray(z, float)
     p = -np.real(np.asarray(n2))
@@ -475,25 +511,43 @@ def evanescent_layers(z: ArrayLike, n2: ArrayLike,
     open_ends = (start == z[0]) & neg[0] | (end == z[-1]) & neg[-1]
     if frequency is None:
         kappa = np.full(start.shape, np.nan)
+        change = np.full(start.shape, np.nan)
     else:
         k0 = TWO_PI * frequency / C
-        seg = _kappa_segments(z, p)
-        kappa = np.array([k0 * seg[(z[1:] > a) & (z[:-1] < b)].sum()
-                          for a, b in zip(start, end)], float)
-    return EvanescentLayers(start, end, end - start, kappa, np.asarray(open_ends, bool))
+        kappa = _layer_kappa(z, p, start, end, k0)
+        keep = np.unique(np.append(np.arange(0, z.size, 2), z.size - 1))
+        thinned = _layer_kappa(z[keep], p[keep], start, end, k0)
+        change = 2.0 * np.abs(kappa - thinned)
+        if exponent_rtol is not None:
+            allowed = exponent_rtol * np.maximum(1.0, 2.0 * kappa)
+            bad = np.nonzero(change > allowed)[0]
+            if bad.size:
+                i = int(bad[0])
+                inside = int(np.count_nonzero(neg & (z >= start[i]) & (z <= end[i])))
+                raise ValueError(
+                    f"grid too coarse for the evanescent layer at z = {start[i]:.6g}.."
+                    f"{end[i]:.6g} m ({inside} samples with Re n² < 0): its exponent 2∫κ dz is "
+                    f"{2 * kappa[i]:.4g} on the grid and {2 * thinned[i]:.4g} on every other "
+                    f"sample, a change above the {allowed[i]:.3g} allowed; sample the layer "
+                    "more finely (geometrically towards a resonance)")
+    return EvanescentLayers(start, end, end - start, kappa, np.asarray(open_ends, bool), change)
 
 
-def wkb_tunnelling_factor(z: ArrayLike, n2: ArrayLike, frequency: float) -> float:
+def wkb_tunnelling_factor(z: ArrayLike, n2: ArrayLike, frequency: float, *,
+                          exponent_rtol: float | None = EXPONENT_RTOL) -> float:
     """WKB power tunnelling factor exp(−2 ∫ κ dz), κ = k0 √(−Re n²) where Re n² < 0.
 
     n² is taken piecewise linear between samples and κ integrated exactly, so a cutoff
-    edge costs nothing in accuracy. For a cutoff–resonance pair (Budden problem,
-    n² = 1 + β/z) the exact transmission e^(−πη) equals this factor (πη = 2∫κ dz = π k0 β;
-    the reflection is (1 − e^(−πη))² from the cutoff side, 0 from the resonance side;
-    Budden 1985, ch. 19; Stix 1992, ch. 13 — checked numerically by
-    :func:`slab_reflection` in the tests). For a barrier between two cutoffs it is the
-    usual estimate, good when ∫ κ dz ≳ 1.
+    edge costs nothing in accuracy; the grid must resolve each layer, which
+    :func:`evanescent_layers` checks (ValueError for a grid too coarse for a layer; the
+    demand ``exponent_rtol`` as there, None to take the samples as exact). For a
+    cutoff–resonance pair (Budden problem, n² = 1 + β/z) the exact transmission e^(−πη)
+    equals this factor (πη = 2∫κ dz = π k0 β; the reflection is (1 − e^(−πη))² from the
+    cutoff side, 0 from the resonance side; Budden 1985, ch. 19; Stix 1992, ch. 13 — checked
+    numerically by :func:`slab_reflection` in the tests), provided the samples reach the
+    resonance geometrically (the part left between the last sample, at distance d, and the
+    resonance is ~2 k0 √(β d)). For a barrier between two cutoffs it is the usual
+    estimate, good when ∫ κ dz ≳ 1.
     """
-    z = np.asarray(z, float)
-    k0 = TWO_PI * frequency / C
-    return float(np.exp(-2.0 * k0 * _kappa_segments(z, -np.real(np.asarray(n2))).sum()))
+    layers = evanescent_layers(z, n2, frequency, exponent_rtol=exponent_rtol)
+    return float(np.exp(-2.0 * layers.kappa_integral.sum()))

@@ -50,9 +50,10 @@ __all__ = [
     "line_names",
 ]
 
-#: Recommended band of a rectangular guide, as multiples of the TE10 cutoff: 1.25-1.9 f_c.
-#: Common practice, derived from the EIA RS-261-B band edges (f_L/f_c 1.23-1.36,
-#: f_U/f_c 1.85-1.91 across WR-2300 ... WR-28).
+#: Rule-of-thumb band of a rectangular guide without a tabulated band, as multiples of the
+#: TE10 cutoff: 1.25-1.9 f_c. Common practice; the published EIA RS-261-B band edges of the
+#: standard sizes spread around it (f_L/f_c 1.23-1.36, f_U/f_c 1.85-1.91 across WR-2300 ...
+#: WR-28), so a standard guide uses its own tabulated band instead.
 RECOMMENDED_BAND_FACTORS = (1.25, 1.9)
 #: Upper edge of any recommended band as a fraction of the next mode's cutoff. 0.95 is the
 #: same convention as 1.9 f_c in a 2:1 guide (TE20 at 2 f_c); common practice.
@@ -225,7 +226,8 @@ class Line:
     dominant_mode, next_mode : str
         Mode labels (``"TE10"``, ``"TE11"``, ``"TEM"``; ``""`` where there is none).
     recommended_band : tuple of float
-        (low, high) operating band, Hz (see :data:`RECOMMENDED_BAND_FACTORS`).
+        (low, high) operating band, Hz: the published band of a standard rectangular size
+        (``catalogue_band``), else the rule of thumb named in ``band_basis``.
     source : str
         Where the dimensions come from.
     eps_r : float
@@ -238,6 +240,9 @@ class Line:
         The band tabulated for a standard size (EIA), Hz.
     confidence : str
         H/M/L confidence of the catalogue data (``""`` for user-defined geometry).
+    band_basis : str
+        What ``recommended_band`` is: ``"EIA RS-261-B band"`` for a tabulated standard size,
+        else the rule of thumb (``"1.25-1.9 f_c rule of thumb"``, ...).
     """
 
     name: str
@@ -253,6 +258,7 @@ class Line:
     iec: str = ""
     catalogue_band: tuple[float, float] | None = None
     confidence: str = ""
+    band_basis: str = ""
 
     def dimension(self, key: str) -> float:
         """One geometric dimension in m (``"a"``, ``"b"``, ``"diameter"``, ...)."""
@@ -290,8 +296,15 @@ def rectangular_guide(a: float, b: float, name: str = "", *, iec: str = "", sour
                       catalogue_band: tuple[float, float] | None = None, confidence: str = "") -> Line:
     """Air-filled rectangular guide with inner dimensions a ≥ b (m), dominant mode TE10.
 
-    f_c = c/(2a); next mode TE20 (c/a) or TE01 (c/(2b)), whichever is lower; recommended
-    band 1.25 f_c … min(1.9 f_c, 0.95 f_next) (common practice, EIA band edges).
+    f_c = c/(2a); next mode TE20 (c/a) or TE01 (c/(2b)), whichever is lower. Recommended
+    band: ``catalogue_band`` where given (the published EIA RS-261-B / IEC 60153-2 band edges
+    of a standard size, e.g. WR-62 12.4-18.0 GHz = 1.307-1.897 f_c), else the rule of thumb
+    1.25 f_c … min(1.9 f_c, 0.95 f_next) (common practice).
+
+    Raises
+    ------
+    ValueError
+        For non-positive dimensions, b > a, or a catalogue band outside the single-mode band.
     """
     if not (a > 0 and b > 0):
         raise ValueError(f"rectangular guide needs positive dimensions, got a={a}, b={b}")
@@ -301,13 +314,20 @@ def rectangular_guide(a: float, b: float, name: str = "", *, iec: str = "", sour
     te20 = float(rectangular_cutoff(a, b, 2, 0))
     te01 = float(rectangular_cutoff(a, b, 0, 1))
     nxt, nxt_mode = (te20, "TE20") if te20 <= te01 else (te01, "TE01")
-    lo, hi = RECOMMENDED_BAND_FACTORS
+    if catalogue_band is not None:
+        band, basis = (float(catalogue_band[0]), float(catalogue_band[1])), "EIA RS-261-B band"
+        if not fc < band[0] < band[1] < nxt:
+            raise ValueError(f"band {band} of {name or 'guide'} is not inside its single-mode "
+                             f"band {fc:.6g}-{nxt:.6g} Hz")
+    else:
+        lo, hi = RECOMMENDED_BAND_FACTORS
+        band, basis = (lo * fc, _upper_edge(fc, nxt, hi)), "1.25-1.9 f_c rule of thumb"
     return Line(
         name=name or f"rectangular {a * 1e3:g} mm x {b * 1e3:g} mm", kind="rectangular",
         cutoff=fc, next_cutoff=nxt, dominant_mode="TE10", next_mode=nxt_mode,
-        recommended_band=(lo * fc, _upper_edge(fc, nxt, hi)), source=source,
+        recommended_band=band, source=source,
         dimensions=(("a", a), ("b", b)), iec=iec, catalogue_band=catalogue_band,
-        confidence=confidence)
+        confidence=confidence, band_basis=basis)
 
 
 def circular_guide(diameter: float, name: str = "", *, source: str = "user-defined",
@@ -325,7 +345,8 @@ def circular_guide(diameter: float, name: str = "", *, source: str = "user-defin
         name=name or f"circular {diameter * 1e3:g} mm", kind="circular", cutoff=fc,
         next_cutoff=nxt, dominant_mode="TE11", next_mode="TM01",
         recommended_band=(CIRCULAR_LOW_FACTOR * fc, NEXT_MODE_MARGIN * nxt), source=source,
-        dimensions=(("diameter", diameter),), confidence=confidence)
+        dimensions=(("diameter", diameter),), confidence=confidence,
+        band_basis="1.1 f_TE11-0.95 f_TM01 rule of thumb")
 
 
 def coaxial_line(inner_diameter: float, outer_diameter: float, eps_r: float = 1.0, name: str = "", *,
@@ -342,7 +363,7 @@ def coaxial_line(inner_diameter: float, outer_diameter: float, eps_r: float = 1.
         cutoff=0.0, next_cutoff=nxt, dominant_mode="TEM", next_mode="TE11",
         recommended_band=(0.0, NEXT_MODE_MARGIN * nxt), source=source, eps_r=eps_r,
         dimensions=(("inner_diameter", inner_diameter), ("outer_diameter", outer_diameter)),
-        confidence=confidence)
+        confidence=confidence, band_basis="0.95 f_TE11 rule of thumb")
 
 
 def free_space() -> Line:

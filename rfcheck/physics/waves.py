@@ -10,9 +10,13 @@ only inside), speeds in m/s.
 
 References
 ----------
-F.F. Chen, *Introduction to Plasma Physics and Controlled Fusion*, 3rd ed. (Springer, 2016),
-ch. 4 (sections on electron plasma waves, sound waves, ion waves, electrostatic electron and
-ion oscillations perpendicular to B, light waves in a plasma).
+P.M. Bellan, *Fundamentals of Plasma Physics* (Cambridge 2006), ch. 4 (elementary plasma
+waves: the EM wave in an unmagnetised plasma, the Langmuir (Bohm-Gross) wave, the ion
+acoustic wave; written with kappa T / m, as here) and ch. 6 (electrostatic waves in a
+magnetised plasma: upper-hybrid and electrostatic ion cyclotron); chapter numbers from memory.
+V.L. Ginzburg, *The Propagation of Electromagnetic Waves in Plasmas*, 2nd ed. (Pergamon 1970),
+ch. 2 (isotropic plasma, eps = 1 - w_pe^2/w^2; from memory).
+T.H. Stix, *Waves in Plasmas* (AIP 1992), ch. 1-2 (the cold upper-hybrid frequency).
 J.D. Huba, *NRL Plasma Formulary* (Naval Research Laboratory, 2019), pp. 28-29.
 """
 
@@ -58,7 +62,8 @@ def thermal_speed(t_ev: ArrayLike, species: str | Species = "e-") -> NDArray:
 def em_wave_frequency(k: ArrayLike, n_e: ArrayLike) -> NDArray:
     """Frequency (Hz) of the transverse EM wave in an unmagnetised cold plasma.
 
-    w^2 = w_pe^2 + c^2 k^2   (Chen 2016, ch. 4)
+    w^2 = w_pe^2 + c^2 k^2   (Bellan 2006, ch. 4; Ginzburg 1970, ch. 2: n^2 = 1 - w_pe^2/w^2;
+    from memory)
 
     Parameters
     ----------
@@ -117,8 +122,9 @@ def bohm_gross_frequency(k: ArrayLike, n_e: ArrayLike, t_e: ArrayLike, gamma: fl
 
     w^2 = w_pe^2 + gamma k^2 v_Te^2,   v_Te^2 = k_B T_e / m_e,   gamma = 3 (1-D adiabatic)
 
-    (Chen 2016, ch. 4, written there as w_p^2 + (3/2) k^2 v_th^2 with v_th^2 = 2 k_B T / m.)
-    Valid for k lambda_De << 1, where Landau damping is weak.
+    (Bellan 2006, ch. 4, written there in the same form, w_pe^2 + 3 k^2 kappa T_e / m_e, the 3
+    being the 1-D adiabatic gamma; from memory.) Valid for k lambda_De << 1, where Landau
+    damping is weak.
 
     Parameters
     ----------
@@ -146,8 +152,10 @@ def ion_acoustic_speed(
 
     v_s = [(gamma_e Z k_B T_e + gamma_i k_B T_i) / m_i]^(1/2)
 
-    Isothermal electrons (gamma_e = 1) and 1-D adiabatic ions (gamma_i = 3) by default (Chen
-    2016, ch. 4); NRL Formulary: C_s = 9.79e5 (gamma Z T_e / mu)^(1/2) cm/s.
+    Isothermal electrons (gamma_e = 1) and 1-D adiabatic ions (gamma_i = 3) by default: the
+    k lambda_De -> 0 limit of w^2/k^2 = (kappa T_e / m_i)/(1 + k^2 lambda_De^2)
+    + 3 kappa T_i / m_i (Bellan 2006, ch. 4, singly charged ions; from memory); NRL
+    Formulary: C_s = 9.79e5 (gamma Z T_e / mu)^(1/2) cm/s, which puts the charge number on T_e.
 
     Parameters
     ----------
@@ -176,7 +184,8 @@ def electrostatic_ion_cyclotron_frequency(
 
     w^2 = W_ci^2 + k^2 v_s^2,   v_s = ion acoustic speed (isothermal electrons)
 
-    (Chen 2016, ch. 4, electrostatic ion waves perpendicular to B.)
+    (Bellan 2006, ch. 6, electrostatic ion cyclotron wave, with v_s as in
+    :func:`ion_acoustic_speed`; from memory.)
 
     Parameters
     ----------
@@ -204,8 +213,9 @@ def upper_hybrid_oscillation_frequency(
 
     w^2 = w_pe^2 + w_ce^2 + gamma k^2 v_Te^2
 
-    Cold (t_e = 0): the upper-hybrid frequency (Chen 2016, ch. 4). The thermal term is the
-    fluid (Bohm-Gross-like) correction; a kinetic treatment replaces it by the electron
+    Cold (t_e = 0): the upper-hybrid frequency, S = 0 at 90 deg (Stix 1992, ch. 1-2). The
+    thermal term is the fluid correction of the Bohm-Gross form, 3 k^2 kappa T_e / m_e as in
+    Bellan 2006, ch. 6 (from memory); a kinetic treatment replaces it by the electron
     Bernstein branches, so use it only for k rho_e << 1.
 
     Parameters

@@ -221,11 +221,11 @@ def _share(x: float) -> str:
 def collisional_regime_rule(ctx: Context, *, max_nu_over_omega: float) -> Iterator[Finding]:
     """What it checks
     The electron collision frequency against the wave's angular frequency, ν/ω, with
-    ν = ν_en + ν_ei: electron–neutral momentum transfer n_g σ_m(T_e) v̄_e from the neutral
-    gas (tabulated cross section at E = T_e) and electron–ion (Braginskii, NRL coefficient)
-    at the path's highest density. The largest value over the envelope (density, frequency,
-    both electron temperatures, the highest neutral pressure of its range) is compared with
-    the limit; the value at the resonance
+    ν = ν_en + ν_ei: electron–neutral momentum transfer n_g ⟨σ_m v⟩ from the neutral gas
+    (the tabulated cross section averaged over a Maxwellian at T_e) and electron–ion
+    (Braginskii, NRL coefficient) at the path's highest density. The largest value over the
+    envelope (density, frequency, both electron temperatures, the highest neutral pressure
+    of its range) is compared with the limit; the value at the resonance
     crossing is printed beside it.
 
     Why it matters
@@ -234,7 +234,9 @@ def collisional_regime_rule(ctx: Context, *, max_nu_over_omega: float) -> Iterat
     ohmic-like and spreads over the path instead of the resonance layer.
 
     Equation
-    ν/ω = (ν_en + ν_ei)/(2π f); ν_en = (p / k_B T_g) σ_m √(8 e T_e/(π m_e));
+    ν/ω = (ν_en + ν_ei)/(2π f); ν_en = (p / k_B T_g) K_m(T_e), with the rate coefficient
+    K_m = ⟨σ_m v⟩ = ∫ σ_m(E) v(E) f_M(E) dE over the Maxwellian energy distribution
+    f_M(E) = 2 (E/π)^½ T_e^(−3/2) e^(−E/T_e), v = (2eE/m_e)^½;
     ν_ei = 2.91e-12 Z n_e lnΛ T_e^(−3/2).
 
     Options

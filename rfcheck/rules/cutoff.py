@@ -119,9 +119,10 @@ def o_mode_cutoff(ctx: Context, *, max_fraction: float, warn_fraction: float) ->
             if part.mode not in BOUNDED and not content.unmagnetised:
                 yield ctx.not_applicable(
                     subject, requirement,
-                    f"the {part.text()} has no density cutoff on its way from the high-field "
-                    "side to its resonance; access.reaches-resonance and access.overdense-route "
-                    "judge it", details)
+                    f"the {part.text()} is judged by access.reaches-resonance and "
+                    "access.overdense-route: an R or X wave has no density cutoff before its "
+                    "resonance from the high-field side, and the R cutoff it meets from the "
+                    "low-field side is found along its path there", details)
                 continue
             yield _bounded(ctx, feed, part, content, requirement, max_fraction, warn_fraction,
                            route_limit, subject, details)

@@ -30,8 +30,12 @@ def waveguide_band(ctx: Context) -> Iterator[Finding]:
     coaxial line has no cutoff) and the next mode must stay cut off (the lower of TE20 and
     TE01 for rectangular guide, TM01 for circular guide, TE11 for coaxial line): a failure
     otherwise. Inside that single-mode band but outside the recommended operating band the
-    finding is a warning: about 1.25–1.9 f_c for rectangular guide (from the EIA band
-    edges), 1.1 f_c … 0.95 f_TM01 for circular guide, up to 0.95 f_TE11 for coaxial line.
+    finding is a warning. The recommended band of a standard rectangular guide is its
+    published EIA RS-261-B / IEC 60153-2 band (WR-340 2.20–3.30 GHz, WR-62 12.4–18.0 GHz: the
+    edges sit at 1.23–1.36 f_c and 1.85–1.91 f_c, not at a fixed multiple); a rectangular
+    guide of other dimensions uses the rule of thumb 1.25 f_c … min(1.9 f_c, 0.95 f_next),
+    circular guide 1.1 f_c … 0.95 f_TM01, coaxial line up to 0.95 f_TE11. The message names
+    the band it used.
     Free-space (quasi-optical) feeds are not applicable.
 
     Why it matters
@@ -55,7 +59,7 @@ def waveguide_band(ctx: Context) -> Iterator[Finding]:
         if line.cutoff > 0:
             lo, hi = line.recommended_band
             requirement = (f"{line.name}: single-mode band, recommended band "
-                           f"{lo / 1e9:.3g}–{hi / 1e9:.3g} GHz")
+                           f"{lo / 1e9:.4g}–{hi / 1e9:.4g} GHz ({line.band_basis})")
         elif math.isfinite(line.next_cutoff):  # TEM line: bounded above by its first higher mode
             requirement = (f"{line.name}: below the {line.next_mode} cutoff "
                            f"{line.next_cutoff / 1e9:.3g} GHz, recommended ≤ "
@@ -91,12 +95,12 @@ def waveguide_band(ctx: Context) -> Iterator[Finding]:
         elif not in_band:
             edge = "below" if low_gap < 0 else "above"
             msg = (f"{feed.frequency / 1e9:.4g} GHz{ratio} lies {edge} the recommended band of "
-                   f"{line.name} ({band_lo / 1e9:.3g}–{band_hi / 1e9:.3g} GHz) but in its "
-                   "single-mode band")
+                   f"{line.name} ({band_lo / 1e9:.4g}–{band_hi / 1e9:.4g} GHz, {line.band_basis}) "
+                   "but in its single-mode band")
         else:
             msg = (f"{feed.frequency / 1e9:.4g} GHz ± {feed.frequency_tolerance / 1e6:.3g} MHz"
                    f"{ratio} lies in the recommended band of {line.name} "
-                   f"({band_lo / 1e9:.3g}–{band_hi / 1e9:.3g} GHz)")
+                   f"({band_lo / 1e9:.4g}–{band_hi / 1e9:.4g} GHz, {line.band_basis})")
         yield ctx.finding(subject, requirement, passed=propagates and single,
                           warn=not in_band, message=msg,
                           measured=Quantity(measured, "Hz"), limit=Quantity(limit, "Hz"),

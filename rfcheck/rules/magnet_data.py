@@ -6,8 +6,10 @@ beyond what the rules already use. Values are JSON-ready: {"value", "unit"}, nev
 infinity (None with a "reason" instead).
 
 Conventions are those of rfcheck.magnet.geometry: injection side = z_start side, B_min is
-the smallest |B| in the plasma volume (possibly off axis), B_rad the largest |B| on the wall
-at the axial position of B_min, the last closed |B| the smallest |B| on the chamber boundary,
+the smallest |B| in the plasma volume (possibly off axis), B_rad ("radial_wall_field") the
+field of the multipole alone on the wall at the axial position of B_min, largest over azimuth
+(0 without a multipole), "wall_total_field" the largest total |B| at the same place, the last
+closed |B| the smallest |B| on the chamber boundary,
 the mirror ratio min(B_inj, B_ext) / on-axis minimum. Single values are at current scale 1;
 "…_range" entries give [lowest, highest] over the current tolerance.
 """
@@ -66,6 +68,8 @@ def magnet_characteristics(ctx: Context) -> dict:
         "radial_wall_field": _q(t.radial_wall.b, "T"),
         "radial_wall_z": _q(t.radial_wall.z, "m"),
         "radial_wall_azimuth": _q(t.radial_wall.phi, "rad"),
+        "wall_total_field": _q(t.wall_total.b, "T"),
+        "wall_total_azimuth": _q(t.wall_total.phi, "rad"),
         "last_closed_field": _q(t.last_closed.b, "T"),
         "last_closed_where": t.last_closed.where,
         "last_closed_r": _q(t.last_closed.r, "m"),
@@ -77,6 +81,7 @@ def magnet_characteristics(ctx: Context) -> dict:
         "extraction_max_range": _range([x.extraction_max.b for x in traps], "T"),
         "volume_min_range": _range([x.volume_min.b for x in traps], "T"),
         "radial_wall_field_range": _range([x.radial_wall.b for x in traps], "T"),
+        "wall_total_field_range": _range([x.wall_total.b for x in traps], "T"),
         "last_closed_field_range": _range([x.last_closed.b for x in traps], "T"),
     })
     if model.magnet.trap == "minimum-b":
@@ -90,7 +95,7 @@ def magnet_characteristics(ctx: Context) -> dict:
             r = min_b_ratios(t, b_ecr)
             over = [min_b_ratios(x, b_ecr) for x in traps]
             entry = {"ecr_field": _q(b_ecr, "T")}
-            for key in ("injection", "extraction", "radial", "minimum"):
+            for key in ("injection", "extraction", "radial", "minimum", "wall_total"):
                 entry[key] = _q(getattr(r, key), "1")
                 entry[key + "_range"] = _range([getattr(o, key) for o in over], "1")
             ratios[feed.id] = entry

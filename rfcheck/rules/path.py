@@ -16,8 +16,8 @@ Along the path:
   (flat; parabolic (1 − (2u − 1)²)^exponent, u = (z − z_start)/L; a linear ramp from 0 at
   each end wall to 1 over ``edge_length``; a table normalised to its maximum);
 * the electron collision frequency ν = ν_en + ν_ei: electron–neutral from the neutral gas
-  (:func:`rfcheck.physics.collisions.electron_neutral_collision_frequency`, cross section
-  at E = T_e) and electron–ion (Braginskii, Z_eff = Σ fraction · Z).
+  (:func:`rfcheck.physics.collisions.electron_neutral_collision_frequency`, n_g ⟨σ_m v⟩
+  over a Maxwellian) and electron–ion (Braginskii, Z_eff = Σ fraction · Z).
 
 Each path carries one wave at the launch angle: the R and L waves along B at 0°, the O and
 X modes across B at 90° (the closed forms n² = R, L, P, RL/S), any other angle the named

@@ -128,8 +128,13 @@ def test_hand_built_trap_characteristic_fields(hand_trap):
     assert trap.volume_min.b == pytest.approx(B_MIN, rel=1e-9)
     assert trap.volume_min.r == pytest.approx(0.0, abs=1e-6)
     assert trap.volume_min.z == pytest.approx(0.0, abs=1e-5)
-    # B_rad at z of B_min, where B0' = 0: |B|^2 = B0^2 + B_hex^2 on every azimuth
-    assert trap.radial_wall.b == pytest.approx(np.hypot(B_MIN, b_h), rel=2e-5)
+    # B_rad is the hexapole's field alone at the wall (the radial field of the published
+    # min-B ratios): the 2-D Halbach value; the segmentation ripple is ~(R/R1)^36 = 3e-6 here.
+    # The total |B| there adds the table field: at z of B_min B0' = 0, so
+    # |B|^2 = B0^2 + B_hex^2 on every azimuth
+    assert trap.radial_wall.b == pytest.approx(b_h, rel=2e-5)
+    assert trap.radial_wall.z == pytest.approx(trap.volume_min.z, abs=1e-12)
+    assert trap.wall_total.b == pytest.approx(np.hypot(B_MIN, b_h), rel=2e-5)
     assert trap.mirror_ratio == pytest.approx(b0(0.15) / B_MIN, rel=1e-9)
     # last closed |B|: on the wall, min over azimuth of
     # |B|^2 = B0^2 + (|(R/2) B0'| - B_hex)^2 (radial table field against the hexapole)
@@ -149,7 +154,9 @@ def test_hand_built_trap_min_b_ratios(hand_trap):
     assert ratios.injection == pytest.approx(2.1 / bres, rel=1e-4)   # ~4.05
     assert ratios.extraction == pytest.approx(1.1 / bres, rel=1e-4)  # ~2.12
     assert ratios.minimum == pytest.approx(0.4 / bres, rel=1e-9)     # ~0.77
-    assert ratios.radial == pytest.approx(np.hypot(0.4, hexapole_wall_field()) / bres, rel=2e-5)
+    # B_rad/B_ECR uses the hexapole alone (~1.61); the total |B| at the wall (~1.78) is beside it
+    assert ratios.radial == pytest.approx(hexapole_wall_field() / bres, rel=2e-5)
+    assert ratios.wall_total == pytest.approx(np.hypot(0.4, hexapole_wall_field()) / bres, rel=2e-5)
 
 
 def test_hand_built_trap_wall_and_rz_arrays(hand_trap):
@@ -203,3 +210,121 @@ def test_uncovered_chamber_is_an_error():
     model = FieldModel(Magnet((AxisTable("scan", "scan.csv", tuple(z), tuple(0.1 + z)),)))
     with pytest.raises(geo.FieldUndefinedError, match="do not cover"):
         geo.axis_profile(model, Chamber(0.03, 0.0, 0.3))
+
+
+# --- B_rad: the multipole field at the wall against the 2-D closed forms ----------------------
+#
+# A Halbach array of M annular segments (segment k centred at theta_k = orientation + k 2 pi / M,
+# uniformly magnetised at (N + 1) theta_k - N orientation, N = poles / 2): the Fourier series of
+# its complex magnetisation m(theta) = M0 e^{i beta(theta)} holds the harmonics e^{i p theta},
+# p = N + 1 + jM, with weights c_j = sin(p pi / M) / (p pi / M) = (-1)^j c_0 (N + 1) / p. In two
+# dimensions each harmonic p >= 2 gives in the bore the field of an ideal 2nu-pole, nu = p - 1,
+# B(r) = B_r nu / (nu - 1) (1 - (r_i / r_o)^(nu - 1)) (r / r_i)^(nu - 1), with the same phase
+# (K. Halbach, Nucl. Instrum. Methods 169 (1980) 1, from memory; the superposition of 2-D line
+# dipoles, B_x - i B_y = mu0 m / (2 pi (w - w0)^2), gives it term by term). Hence
+# |B(r, phi)| = (r/r_i)^(N-1) |sum_j a_j (r/r_i)^(jM) e^{ijM phi'}|, phi' = phi - orientation:
+# the fundamental grows as r^(N-1), the ripple repeats every 2 pi / M, all terms add at the
+# joints between segments (the maximum) and alternate at the segment centres (the minimum).
+
+
+def halbach_segmented(n, m, r_in, r_out, remanence, r, at="joint"):
+    """|B| of the M-segment 2N-pole array at radius r in the 2-D limit (series above)."""
+    total = 0.0
+    for j in range(int(np.ceil((1 - n) / m)), 60):
+        nu = n + j * m
+        p = nu + 1
+        if p < 2:
+            continue
+        a = remanence * np.sin(p * np.pi / m) / (p * np.pi / m) * nu / (nu - 1) \
+            * (1 - (r_in / r_out) ** (nu - 1)) * (r / r_in) ** (nu - 1)
+        total += abs(a) if at == "joint" else a
+    return total
+
+
+def _long_multipole(poles, segments, orientation=0.0, r_in=0.041, r_out=0.080):
+    """A 2 m long array (the 2-D limit at its mid-plane z = 0) and a 37 mm chamber."""
+    mp = Multipole("mp", r_in, r_out, 0.0, 2.0, 1.3, poles=poles, segments=segments,
+                   orientation=orientation)
+    chamber = Chamber(0.037, -0.05, 0.05)
+    return FieldModel(Magnet((mp,)), bore_radius=chamber.radius), chamber
+
+
+@pytest.mark.parametrize("poles", [4, 6, 8])
+def test_multipole_field_grows_as_r_to_the_n_minus_1(poles):
+    """Ideal 2N-pole: B(r) = B_r N/(N-1) (1 - (r_i/r_o)^(N-1)) (r/r_i)^(N-1) times the
+    segmentation factor sin x / x, x = (N + 1) pi / M (Halbach 1980, from memory); at r <= 20 mm
+    the ripple harmonics, ~(r/r_i)^24 < 4e-8, are negligible."""
+    n = poles // 2
+    model, _ = _long_multipole(poles, 24)
+    r = np.array([0.005, 0.01, 0.02])
+    phi = np.linspace(0, 2 * np.pi, 7)[:-1]
+    rr, pp = np.meshgrid(r, phi, indexing="ij")
+    b = np.linalg.norm(geo.multipole_field(model, np.stack([rr * np.cos(pp), rr * np.sin(pp),
+                                                            0 * rr], axis=-1)), axis=-1)
+    x = (n + 1) * np.pi / 24
+    ideal = 1.3 * n / (n - 1) * (1 - (0.041 / 0.080) ** (n - 1)) * (r / 0.041) ** (n - 1)
+    np.testing.assert_allclose(b, (ideal * np.sin(x) / x)[:, None] * np.ones_like(b), rtol=1e-4)
+    # the power law itself, independent of the prefactor
+    np.testing.assert_allclose(b[1:, 0] / b[0, 0], (r[1:] / r[0]) ** (n - 1), rtol=1e-5)
+
+
+@pytest.mark.parametrize("segments", [12, 18, 24, 36])
+def test_radial_wall_field_resolves_the_segmentation_ripple(segments):
+    """B_rad = max over azimuth of the hexapole's |B| at the wall: the joint value of the series
+    above; the total |B| of a multipole alone is the same field. Ripple (max - min)/(max + min)
+    against the closed form: 7.2 %, 2.7 %, 1.1 %, 0.23 % for M = 12, 18, 24, 36 at
+    R / r_i = 37/41 (computed from the series)."""
+    model, chamber = _long_multipole(6, segments, orientation=0.3)
+    (radial,), (total,) = geo.radial_wall_fields(model, chamber, [0.0])
+    peak = halbach_segmented(3, segments, 0.041, 0.080, 1.3, chamber.radius, "joint")
+    trough = halbach_segmented(3, segments, 0.041, 0.080, 1.3, chamber.radius, "centre")
+    assert radial.b == pytest.approx(peak, rel=1e-4)  # facet engine <= 1e-4 (sources.py)
+    assert total.b == pytest.approx(radial.b, rel=1e-12)
+    # the maximum sits at a joint between segments, phi = orientation + (k + 1/2) 2 pi / M
+    pitch = 2 * np.pi / segments
+    offset = ((radial.phi - 0.3) / pitch) % 1.0
+    assert offset == pytest.approx(0.5, abs=1e-3)
+    # the ripple the search resolved, against the closed form
+    phi = 0.3 + pitch * np.array([0.0, 0.5])
+    pts = np.stack([chamber.radius * np.cos(phi), chamber.radius * np.sin(phi), 0 * phi], -1)
+    lo, hi = np.linalg.norm(geo.multipole_field(model, pts), axis=-1)
+    ripple = (hi - lo) / (hi + lo)
+    assert ripple == pytest.approx((peak - trough) / (peak + trough), rel=2e-3)
+    assert hi == pytest.approx(radial.b, rel=1e-6)  # refined to the joint
+
+
+def test_radial_wall_field_against_the_exact_segment_engine():
+    """The same maximum with magpylib's exact CylinderSegment engine (reference library) and
+    the series (2-D closed form) for the 24-segment hexapole of the min-B example."""
+    mp = Multipole("mp", 0.041, 0.080, 0.0, 2.0, 1.3, poles=6, segments=24)
+    chamber = Chamber(0.037, -0.05, 0.05)
+    exact = FieldModel(Magnet((mp,)), multipole_engine="segments")
+    grid = geo.GeometryGrid(pitch_azimuths=4, zoom_levels=5)
+    (radial,), _ = geo.radial_wall_fields(exact, chamber, [0.0], grid)
+    assert radial.b == pytest.approx(halbach_segmented(3, 24, 0.041, 0.080, 1.3, 0.037), rel=1e-6)
+
+
+def test_coarse_azimuths_miss_the_ripple_peak():
+    """Why the search samples every segment pitch: one sample per 10 degrees (the old sweep
+    density of a hexapole, 36 per turn) on a 15-degree pitch never lands on most joints; a
+    sweep at those azimuths alone finds less than the closed-form peak, the refined search
+    finds it."""
+    model, chamber = _long_multipole(6, 24)
+    phi = np.radians(np.arange(0.0, 120.0, 10.0)) + np.radians(1.0)
+    pts = np.stack([chamber.radius * np.cos(phi), chamber.radius * np.sin(phi), 0 * phi], -1)
+    coarse = np.linalg.norm(geo.multipole_field(model, pts), axis=-1).max()
+    peak = halbach_segmented(3, 24, 0.041, 0.080, 1.3, chamber.radius)
+    assert coarse < peak * (1 - 2e-3)
+    (radial,), _ = geo.radial_wall_fields(model, chamber, [0.0])
+    assert radial.b == pytest.approx(peak, rel=1e-4)
+
+
+def test_no_multipole_means_no_radial_field():
+    """An axisymmetric magnet has no multipole field: B_rad = 0, while the total |B| on the wall
+    is the solenoid's (uniform field: exactly b everywhere)."""
+    model = FieldModel(Magnet((UniformField("u", 0.3),)))
+    chamber = Chamber(0.04, 0.0, 0.2)
+    trap = geo.trap_geometry(model, chamber, grid=geo.GeometryGrid(volume_z=11, wall_z=11))
+    assert trap.radial_wall.b == 0.0 and trap.radial_wall.where == "wall"
+    assert trap.wall_total.b == pytest.approx(0.3, rel=1e-12)
+    assert geo.min_b_ratios(trap, 0.1).radial == 0.0

@@ -165,3 +165,107 @@ def test_x_mode_full_wave_through_uhr_matches_access_and_budden():
             assert wave.reflected == pytest.approx((1 - acc.tunnelling_factor) ** 2, rel=1e-2)
         else:
             assert wave.reflected < 1e-3
+
+
+# --- a resonance reached from its propagating side: no zero-width layer from rounding ---------
+
+@pytest.mark.parametrize("f, x, ions", [
+    pytest.param(2.45e9, 0.3, (), id="2.45 GHz X=0.3"),
+    pytest.param(2.45e9, 0.05, (), id="2.45 GHz X=0.05"),
+    pytest.param(28e9, 0.7, "H+", id="28 GHz X=0.7 protons"),
+    pytest.param(2.45e9, 0.3, "Ar+", id="2.45 GHz X=0.3 argon"),
+])
+def test_x_mode_from_the_high_field_side_reaches_the_uhr_directly(f, x, ions):
+    # Stix 1992 ch. 2 (reference-values §2.3): launched where Y > 1 and coming down the field,
+    # the X mode has n^2 = RL/S = L (1 + Y)(1 - Y - X)/(1 - Y^2 - X) > 0 all the way to the
+    # upper-hybrid layer (both brackets negative on that side; n^2 = 2L at the ECR), where
+    # n^2 -> +inf: no cutoff, no evanescent layer. A path sample placed 0 ... 23 ulp on the
+    # propagating side of the layer must not open a layer of zero width from the rounding of
+    # n^2 there (before the fix, 2.45 GHz X = 0.3 "tunnelled" at 4, 6, 12, 14, 20, 22 ulp).
+    z_uh = 0.1 - L_B * (1 - np.sqrt(1 - x))
+    for k in range(24):
+        z = Z.copy()
+        z[np.argmin(np.abs(z - z_uh))] = z_uh + k * np.spacing(z_uh)
+        b = ecr_field(f) * (1 + (z - 0.1) / L_B)
+        out = launch_path_access(z, b, np.full(z.shape, x * critical_density(f)), f, "X",
+                                 ions=ions, launch_from="end")
+        assert out.target == "UHR" and out.resonance_z == pytest.approx([z_uh], abs=1e-12)
+        assert out.verdict == "direct", (k, out.layers, out.first_cutoff)
+        assert out.layers.start.size == 0 and out.tunnelling_factor == 1.0
+        assert out.first_cutoff == ""
+    # the closed form on the propagating side (its 0/0 at the ECR sample left out)
+    y = b / ecr_field(f)
+    side = (z > z_uh + 1e-9) & (np.abs(y - 1) > 1e-9)
+    assert np.all(_x_mode_n2_closed(x, y[side]) > 0)
+
+
+def test_x_mode_from_the_high_field_side_with_a_density_ramp():
+    # the case that once reported "tunnelling" through a 1e-13 m layer: 2.45 GHz, density
+    # ramp X = 0.05 (0.5 + z/0.2), 1201 samples, one of them 1 ulp before the UHR at 97.5 mm
+    f = 2.45e9
+    z = np.linspace(0.0, 0.2, 1201)
+    b = ecr_field(f) * (1 + (z - 0.1) / L_B)
+    n = 0.05 * critical_density(f) * (0.5 + z / 0.2)
+    out = launch_path_access(z, b, n, f, "X", launch_from="end")
+    assert out.verdict == "direct" and out.tunnelling_factor == 1.0 and out.layers.start.size == 0
+    assert out.resonance_z == pytest.approx([0.0975], abs=1e-9)
+
+
+def test_genuine_thin_layer_before_the_uhr_is_still_found():
+    # low-field side at X = 1e-4: the R cutoff (Y = 1 - X, 10 um before the ECR) and the UHR
+    # (Y^2 = 1 - X, 5 um before it) bound a 5 um layer, 1 % of the 500 um sample spacing;
+    # tunnelling factor against scipy quad of kappa = k0 sqrt(-RL/S) (Stix 1992 ch. 1 forms)
+    f, x = 2.45e9, 1e-4
+    n = np.full(Z.shape, x * critical_density(f))
+    out = launch_path_access(Z, linear_field(f), n, f, "X")
+    z_r, z_uh = 0.1 - x * L_B, 0.1 - L_B * (1 - np.sqrt(1 - x))
+    assert out.verdict == "tunnelling" and out.first_cutoff == "R cutoff"
+    # edges interpolated linearly on the refined grid: to 1e-4 of the layer width
+    assert out.layers.start == pytest.approx([z_r], abs=5e-10)
+    assert out.layers.width == pytest.approx([z_uh - z_r], rel=2e-4)
+    k0 = TWO_PI * f / C
+    kappa = lambda zz: k0 * np.sqrt(max(-_x_mode_n2_closed(x, 1 + (zz - 0.1) / L_B), 0.0))  # noqa: E731
+    integral, _ = quad(kappa, z_r, z_uh, limit=200)
+    assert out.tunnelling_factor == pytest.approx(np.exp(-2 * integral), rel=1e-4)
+
+
+def test_genuine_thin_barrier_on_one_sample_is_still_found():
+    # O mode (n^2 = P = 1 - X) with the density raised to X_p = 1.2 at one sample of a
+    # X_b = 0.8 background (linear between samples): a triangular barrier of half-width
+    # w = h (X_p - 1)/(X_p - X_b) = h/2 and exponent 2∫κ = 2 * 2 * (2/3) k0 w sqrt(X_p - 1)
+    # (exact for the piecewise-linear profile)
+    f = 2.45e9
+    z = np.linspace(0.0, 0.2, 41)
+    h = z[1] - z[0]
+    x = np.full(z.shape, 0.8)
+    x[10] = 1.2
+    out = launch_path_access(z, np.full(z.shape, 0.5 * ecr_field(f)), x * critical_density(f),
+                             f, "O")
+    k0 = TWO_PI * f / C
+    assert out.verdict == "no-resonance" and out.layers.start.size == 1
+    assert out.layers.width == pytest.approx([h], rel=1e-9)
+    assert out.tunnelling_factor == pytest.approx(
+        np.exp(-4 * (2 / 3) * k0 * (h / 2) * np.sqrt(0.2)), rel=1e-9)
+
+
+def test_unresolved_layer_is_refined_to_the_closed_form():
+    # R wave below the ECR through a field bump Y = 0.5, 0.95, 0.5 on three samples (X = 0.3):
+    # the R-cutoff barrier (Y > 1 - X) rests on one sample, which the resolution check of
+    # evanescent_layers refuses; the path access refines its cells until resolved. Closed
+    # form: with u = 1 - Y linear in z (|dY/dz| = g), 2∫κ dz = 4 (k0/g) [F(X) - F(u_min)],
+    # F(u) = sqrt(u (X - u)) + X asin(sqrt(u/X)) (antiderivative of sqrt((X - u)/u))
+    from rfcheck.physics.fullwave import evanescent_layers
+
+    f, x = 2.45e9, 0.3
+    z = np.array([0.0, 0.05, 0.1])
+    b = ecr_field(f) * np.array([0.5, 0.95, 0.5])
+    n = np.full(3, x * critical_density(f))
+    with pytest.raises(ValueError, match="grid too coarse"):
+        evanescent_layers(z, mode_n2(f, b, n, "R"), f)
+    out = launch_path_access(z, b, n, f, "R", refine=1)
+    k0, g = TWO_PI * f / C, 0.45 / 0.05
+    big_f = lambda u: np.sqrt(u * (x - u)) + x * np.arcsin(np.sqrt(u / x))  # noqa: E731
+    exponent = 4 * (k0 / g) * (big_f(x) - big_f(0.05))
+    assert out.verdict == "no-resonance" and out.layers.start.size == 1
+    assert -np.log(out.tunnelling_factor) == pytest.approx(exponent, rel=1e-3)
+    assert out.layers.exponent_change[0] <= 1e-2 * exponent

@@ -12,7 +12,9 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from rfcheck.physics import frequencies as fr
-from rfcheck.physics.species import parse_species
+from rfcheck.physics.coldplasma import stix
+from rfcheck.physics.constants import E_CHARGE, EPS0, M_E, M_P
+from rfcheck.physics.species import as_species, parse_species
 
 NRL = 5e-3  # NRL Formulary coefficients carry 3 significant figures
 CM3 = 1e6  # m^-3 per cm^-3
@@ -113,7 +115,45 @@ def test_worked_plasma_parameter_cases(n, b, f_pe, f_ce, f_uh, f_lh):
     assert fr.electron_plasma_frequency(n) == pytest.approx(f_pe, rel=1e-5)
     assert fr.electron_cyclotron_frequency(b) == pytest.approx(f_ce, rel=1e-5)
     assert fr.upper_hybrid_frequency(n, b) == pytest.approx(f_uh, rel=1e-5)
-    assert fr.lower_hybrid_frequency(n, b, "H+") == pytest.approx(f_lh, rel=1e-5)
+    # ref 1.4 tabulates 1/w_LH^2 = 1/(W_ci^2 + w_pi^2) + 1/(W_ci w_ce), which drops terms of
+    # order m_e/m_p = 5.45e-4 (CODATA); the exact root of S = 0 returned here lies above it
+    # by 0 to 5.3e-4 (measured 3.0e-4, 5.2e-4, 5.2e-4, 5.3e-4, 1e-6, 4.5e-4 for these rows)
+    ratio = fr.lower_hybrid_frequency(n, b, "H+") / f_lh
+    assert 1 - 1e-5 <= ratio <= 1 + M_E / M_P
+
+
+def _stix_s_terms(f, n, b, ion):
+    """The three terms of S = 1 - w_pe^2/(w^2 - w_ce^2) - w_pi^2/(w^2 - W_ci^2) (Stix 1992, ch. 1),
+    written out here from the definition (electrons and one ion species, n_i = n_e/Z)."""
+    sp = as_species(ion)
+    z = abs(sp.charge_number)
+    w = 2 * np.pi * f
+    w_ce, w_ci = E_CHARGE * b / M_E, z * E_CHARGE * b / sp.mass
+    w_pe2, w_pi2 = n * E_CHARGE**2 / (EPS0 * M_E), (n / z) * (z * E_CHARGE) ** 2 / (EPS0 * sp.mass)
+    return 1.0, -w_pe2 / (w**2 - w_ce**2), -w_pi2 / (w**2 - w_ci**2)
+
+
+@pytest.mark.parametrize("ion", ["H+", "D+", "He+", "Ar+", "Ar8+"])
+@pytest.mark.parametrize("n, b", [(1e14, 0.1), (1e17, 0.0875), (1e19, 0.05), (1e20, 5.3), (1e21, 1.0)])
+def test_lower_hybrid_is_a_root_of_stix_s(ion, n, b):
+    """S(f_LH) = 0 to rounding, from the written-out S and from coldplasma.stix."""
+    f_lh = fr.lower_hybrid_frequency(n, b, ion)
+    terms = _stix_s_terms(f_lh, n, b, ion)
+    assert abs(sum(terms)) <= 1e-11 * sum(abs(t) for t in terms)
+    s = stix(f_lh, b, n, ions=ion).S
+    assert abs(s) <= 1e-9 * sum(abs(t) for t in terms)
+    # the lower of the two roots: between the ion cyclotron and the upper-hybrid frequency
+    assert fr.ion_cyclotron_frequency(b, ion) < f_lh < fr.upper_hybrid_frequency(n, b)
+
+
+def test_lower_hybrid_limits():
+    # n_e -> 0: the lower root of S = 0 is the ion cyclotron frequency (Stix 1992, ch. 1)
+    assert fr.lower_hybrid_frequency(1e-3, 1.0, "D+") == pytest.approx(
+        fr.ion_cyclotron_frequency(1.0, "D+"), rel=1e-12)
+    # dense plasma, w_pe >> w_ce: sqrt(W_ci w_ce) to O(w_ce^2/w_pe^2 + m_e/m_i) (Stix 1992, ch. 2)
+    n, b = 1e22, 0.1
+    dense = np.sqrt(fr.ion_cyclotron_frequency(b, "H+") * fr.electron_cyclotron_frequency(b))
+    assert fr.lower_hybrid_frequency(n, b, "H+") == pytest.approx(dense, rel=2e-3)
 
 
 def test_ion_frequencies_of_the_2_45_ghz_case():
@@ -198,7 +238,9 @@ def test_frequencies_match_plasmapy_at_random_points(plasmapy_frequencies):
 
 
 def test_lower_hybrid_dense_limit_matches_plasmapy(plasmapy_frequencies):
-    """PlasmaPy's lower_hybrid_frequency omits W_ci^2 beside w_pi^2; they agree to (W_ci/w_pi)^2."""
+    """PlasmaPy's lower_hybrid_frequency is the approximate form without W_ci^2 beside w_pi^2:
+    it agrees with the exact root of S = 0 to (W_ci/w_pi)^2 plus the O(m_e/m_p) terms the
+    approximate form drops (m_e/m_p = 5.45e-4, CODATA)."""
     u = pytest.importorskip("astropy.units")
     rng = np.random.default_rng(7)
     n = 10 ** rng.uniform(16, 21, 500)
@@ -206,7 +248,7 @@ def test_lower_hybrid_dense_limit_matches_plasmapy(plasmapy_frequencies):
     ours = fr.lower_hybrid_frequency(n, b, "H+")
     ref = plasmapy_frequencies.lower_hybrid_frequency(b * u.T, n * u.m**-3, "p+").value / (2 * np.pi)
     bound = (fr.ion_cyclotron_frequency(b, "H+") / fr.ion_plasma_frequency(n, "H+")) ** 2
-    assert np.all(np.abs(ours / ref - 1) <= bound + 1e-14)
+    assert np.all(np.abs(ours / ref - 1) <= bound + M_E / M_P)
 
 
 # --------------------------------------------------------------------------- identities, properties

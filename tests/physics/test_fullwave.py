@@ -186,6 +186,80 @@ def test_x_mode_oblique_against_solve_ivp():
     assert abs(res.balance_residual) < 1e-8
 
 
+# --------------------------------------------------------------------------- WKB resolution
+def _exponent_or_refusal(z, n2):
+    """2∫κ dz from wkb_tunnelling_factor, or None where it refuses the grid."""
+    try:
+        return -np.log(wkb_tunnelling_factor(z, n2, F_UNIT))
+    except ValueError as err:
+        assert "grid too coarse for the evanescent layer" in str(err)
+        return None
+
+
+@pytest.mark.parametrize("beta", [0.3, 1.0, 3.0])
+def test_coarse_grid_is_right_or_refused_budden(beta):
+    # Budden layer n^2 = 1 + beta/z, cutoff z = -beta, resonance z = 0: exponent pi k0 beta
+    # (Budden 1985 ch. 19; closed form ∫ sqrt((beta - u)/u) du = pi beta / 2). Samples run
+    # geometrically from 1.5 beta to 1e-14 beta before the resonance. Every grid, however
+    # coarse, gives the exponent to EXPONENT_RTOL * max(1, exponent) or refuses; measured:
+    # refused up to 128 samples, then errors 0.33 of the thinned-grid change (h^2 convergence)
+    from rfcheck.physics.fullwave import EXPONENT_RTOL
+
+    exact = np.pi * beta
+    outcomes = []
+    for count in (4, 6, 8, 12, 16, 24, 32, 64, 128, 256, 512, 2048):
+        zz = -beta * np.logspace(np.log10(1.5), -14.0, count)
+        got = _exponent_or_refusal(zz, 1 + beta / zz)
+        outcomes.append(got is not None)
+        if got is not None:
+            assert abs(got - exact) <= EXPONENT_RTOL * max(1.0, exact), count
+    assert not outcomes[0] and outcomes[-1]  # the coarsest refused, the finest accepted
+
+
+def test_coarse_grid_is_right_or_refused():
+    # parabolic barrier n^2 = -a (1 - (z/w)^2), two cutoffs: exponent k0 sqrt(a) pi w
+    # (standard integral); uniform grids of 5 ... 641 samples at two offsets. A linear layer
+    # n^2 = -z is exact on any grid (2∫_0^4 sqrt(z) dz = 32/3) and never refused.
+    from rfcheck.physics.fullwave import EXPONENT_RTOL
+
+    a, w = 2.0, 3.0
+    exact = np.sqrt(a) * np.pi * w
+    accepted = 0
+    for count in (5, 7, 9, 13, 17, 25, 41, 81, 161, 641):
+        for shift in (0.0, 0.37):
+            z = np.linspace(-2 * w, 2 * w, count) + shift * 4 * w / (count - 1)
+            got = _exponent_or_refusal(z, -a * (1 - (z / w) ** 2))
+            if got is not None:
+                accepted += 1
+                assert abs(got - exact) <= EXPONENT_RTOL * exact, (count, shift)
+    assert 0 < accepted < 20
+    for count in (3, 4, 5, 8):
+        z = np.linspace(-1.0, 4.0, count)
+        assert _exponent_or_refusal(z, -z) == pytest.approx(32.0 / 3.0, rel=1e-14)
+    # the bent three-sample line: the layer z = 0..5 rests on one sample; dropping it moves
+    # the edge to z = 2 and the exponent from 20/3 to 4: refused (declared exact, 20/3)
+    zb, nb = np.array([-1.0, 0.0, 5.0]), np.array([1.0, 0.0, -1.0])
+    with pytest.raises(ValueError, match=r"z = 0\.\.5 m \(1 samples with Re n² < 0\)"):
+        evanescent_layers(zb, nb, F_UNIT)
+    lay = evanescent_layers(zb, nb, F_UNIT, exponent_rtol=None)
+    assert lay.kappa_integral == pytest.approx([10.0 / 3.0], rel=1e-14)
+    assert lay.exponent_change == pytest.approx([20.0 / 3.0 - 4.0], rel=1e-12)
+
+
+def test_thin_layer_below_the_resolution_demand_passes():
+    # a layer carried by one sample (n^2 = -p there, +p at the neighbours 0.1 away: edges at
+    # +-0.05) whose exponent is under EXPONENT_RTOL is accepted, since resolving it cannot move
+    # the factor by more than 1 %: triangle closed form 2∫κ = 2 * 2 * (2/3) w sqrt(p) = 8.4e-3
+    z = np.linspace(-1.0, 1.0, 21)
+    p = 4e-3
+    n2 = np.where(np.isclose(z, 0.0), -p, p)
+    lay = evanescent_layers(z, n2, F_UNIT)
+    assert lay.start == pytest.approx([-0.05]) and lay.width == pytest.approx([0.1])
+    assert 2 * lay.kappa_integral[0] == pytest.approx(4 * (2 / 3) * 0.05 * np.sqrt(p), rel=1e-12)
+    assert wkb_tunnelling_factor(z, n2, F_UNIT) == pytest.approx(
+        np.exp(-4 * (2 / 3) * 0.05 * np.sqrt(p)), rel=1e-12)
+
+
 def test_evanescent_layers_and_wkb_closed_forms():
     # parabolic barrier n^2 = -a (1 - (z/w)^2): ∫κ dz = k0 sqrt(a) pi w / 2 (standard integral)
     a, w = 2.0, 3.0
@@ -197,8 +271,10 @@ def test_evanescent_layers_and_wkb_closed_forms():
     assert layers.kappa_integral == pytest.approx([np.sqrt(a) * np.pi * w / 2], rel=1e-6)
     assert wkb_tunnelling_factor(z, n2, F_UNIT) == pytest.approx(
         np.exp(-np.sqrt(a) * np.pi * w), rel=1e-5)
-    # linear n^2 is integrated exactly: ∫_0^L sqrt(z/L) dz = 2L/3
-    zl = np.array([-1.0, 0.0, 5.0])
+    # linear n^2 is integrated exactly: ∫_0^L sqrt(z/L) dz = 2L/3, on any grid of one straight
+    # line (here n^2 = -z/5 on three samples; the earlier z = -1, 0, 5 bent the line at the
+    # layer's edge, which the resolution check refuses: see test_coarse_grid_is_right_or_refused)
+    zl = np.array([-5.0, 0.0, 5.0])
     lay = evanescent_layers(zl, np.array([1.0, 0.0, -1.0]), F_UNIT)
     assert lay.kappa_integral == pytest.approx([10.0 / 3.0], rel=1e-14)
     assert bool(lay.open_ends[0])

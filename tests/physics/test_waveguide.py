@@ -88,14 +88,45 @@ def test_cutoffs_and_bands_match_eia_table(name, iec, te10, te20, te01, f_lo, f_
     assert line.next_cutoff / 1e9 == pytest.approx(min(te20, te01), abs=6e-5)
 
 
-def test_recommended_band_is_1_25_to_1_9_fc():
-    # common practice derived from the EIA band edges (reference-values §3)
-    for name in RECT_NAMES:
-        line = wg.line_from_name(name)
-        lo, hi = line.recommended_band
-        assert lo == pytest.approx(1.25 * line.cutoff, rel=1e-12)
-        assert hi == pytest.approx(min(1.9 * line.cutoff, 0.95 * line.next_cutoff), rel=1e-12)
-        assert hi < line.next_cutoff
+@pytest.mark.parametrize("name, iec, te10, te20, te01, f_lo, f_hi", TABLE_3,
+                         ids=[f"{r[0]} band {r[5]}-{r[6]} GHz (EIA RS-261-B, IEC 60153-2)" for r in TABLE_3])
+def test_recommended_band_is_the_published_band(name, iec, te10, te20, te01, f_lo, f_hi):
+    """The recommended band of a standard guide is its EIA RS-261-B band (reference-values §3,
+    H), not 1.25-1.9 f_c: WR-62 starts at 12.4 GHz = 1.307 f_c (1.25 f_c would be 11.86 GHz)."""
+    line = wg.line_from_name(name)
+    assert line.recommended_band == pytest.approx((f_lo * 1e9, f_hi * 1e9), rel=1e-12)
+    assert line.band_basis == "EIA RS-261-B band"
+    assert line.cutoff < line.recommended_band[0] < line.recommended_band[1] < line.next_cutoff
+
+
+def test_wr62_band_is_not_a_multiple_of_the_cutoff():
+    # EIA RS-261-B: WR-62 12.40-18.00 GHz; 1.25 f_c = 11.86 GHz would admit 12 GHz (reference-values §3)
+    line = wg.line_from_name("WR-62")
+    assert 1.25 * line.cutoff == pytest.approx(11.86e9, rel=1e-3)
+    assert line.recommended_band[0] == 12.4e9
+
+
+@pytest.mark.parametrize("name", RECT_NAMES)
+def test_every_catalogue_band_is_its_tabulated_band_inside_single_mode(name):
+    """Every rectangular entry of lines.toml (including the sizes beyond reference-values §3,
+    confidence M) uses its tabulated band, which lies inside TE10-next-mode; its edges fall in
+    the spread of the EIA table, 1.2-1.4 f_c and 1.8-1.95 f_c (reference-values §3)."""
+    line = wg.line_from_name(name)
+    lo, hi = line.recommended_band
+    assert (lo, hi) == line.catalogue_band
+    assert line.cutoff < lo < hi < line.next_cutoff
+    assert 1.2 < lo / line.cutoff < 1.4 and 1.8 < hi / line.cutoff < 1.95
+
+
+def test_rule_of_thumb_band_for_a_guide_without_a_table():
+    # a user-defined 80 x 30 mm guide: 1.25 f_c ... min(1.9 f_c, 0.95 f_next) (common practice)
+    line = wg.rectangular_guide(0.08, 0.03)
+    lo, hi = line.recommended_band
+    assert lo == pytest.approx(1.25 * line.cutoff, rel=1e-12)
+    assert hi == pytest.approx(min(1.9 * line.cutoff, 0.95 * line.next_cutoff), rel=1e-12)
+    assert line.band_basis == "1.25-1.9 f_c rule of thumb"
+    with pytest.raises(ValueError, match="not inside its single-mode band"):
+        wg.rectangular_guide(0.08, 0.03, catalogue_band=(1.5e9, 4.0e9))  # f_c = 1.87 GHz
 
 
 @pytest.mark.parametrize("name, f, ratio, lam_g_mm, z_te", [
@@ -115,9 +146,9 @@ def test_worked_anchors(name, f, ratio, lam_g_mm, z_te):
 
 
 def test_wr284_at_2_45_ghz_is_below_its_recommended_band():
-    # reference-values §3: 2.45 GHz in WR-284 is 1.179 f_c, below the recommended band
+    # reference-values §3: 2.45 GHz in WR-284 is 1.179 f_c, below its EIA band (2.60-3.95 GHz)
     line = wg.line_from_name("WR-284")
-    assert 2.45e9 < line.recommended_band[0]
+    assert 2.45e9 < line.recommended_band[0] == 2.60e9
     assert line.cutoff < 2.45e9 < line.next_cutoff
 
 

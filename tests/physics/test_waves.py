@@ -2,7 +2,8 @@
 
 Check values: NRL Plasma Formulary (2019) pp. 28-29 (3 figures: rel 5e-3); reference-values.md
 section 1.4 (CODATA evaluations, "H"); PlasmaPy 2025.8 speeds; closed-form textbook limits
-(Chen 2016, ch. 4) and identities of the trade (v_phase v_group = c^2).
+(Bellan 2006, ch. 4 and 6; Stix 1992, ch. 1-2; from memory) and identities of the trade
+(v_phase v_group = c^2).
 """
 
 from __future__ import annotations

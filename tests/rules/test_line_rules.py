@@ -171,18 +171,20 @@ def _circular(d, p):
     return p * C / (math.pi * d)  # Pozar §3.4: f_c = p c/(2π r)
 
 
-FC_WR340 = C / (2 * 3.4 * INCH)  # 1.7357 GHz (reference-values §3)
-FC_WR284 = C / (2 * 2.84 * INCH)  # 2.0780 GHz
 TM01_90 = _circular(0.09, 2.405)  # 2.551 GHz (p01 = 2.405, Pozar table 3.4)
 TE11_90 = _circular(0.09, 1.841)  # 1.953 GHz (p'11 = 1.841, Pozar table 3.3)
 TE11_COAX = 2 * C / (math.pi * (16.866e-3 + 38.786e-3))  # 3.430 GHz, EIA 1-5/8 (Pozar §3.5)
 
 
-# the binding edge of the recommended band: 1.25 f_c (EIA band edges, reference-values §3) or
-# 0.95 of the next cutoff (common practice); None where only the verdict is checked
+# the binding edge of the recommended band: the published EIA RS-261-B band edge of a standard
+# guide (WR-340 2.20 GHz, WR-284 2.60 GHz; reference-values §3, H; was 1.25 f_c = 2.170 and
+# 2.597 GHz before the bands were read from the table) or 0.95 of the next cutoff (common
+# practice); None where only the verdict is checked
 @pytest.mark.parametrize("line, f, status, edge", [
-    pytest.param("WR-340", 2.45e9, Status.PASS, 1.25 * FC_WR340, id="WR-340 @ 2.45 GHz in band"),
-    pytest.param("WR-284", 2.45e9, Status.WARN, 1.25 * FC_WR284, id="WR-284 @ 2.45 GHz below band"),
+    pytest.param("WR-340", 2.45e9, Status.PASS, 2.20e9, id="WR-340 @ 2.45 GHz in band (EIA 2.20-3.30)"),
+    pytest.param("WR-284", 2.45e9, Status.WARN, 2.60e9, id="WR-284 @ 2.45 GHz below band (EIA 2.60-3.95)"),
+    pytest.param("WR-62", 12.2e9, Status.WARN, 12.4e9,
+                 id="WR-62 @ 12.2 GHz below the EIA band 12.4-18.0 (above 1.25 f_c = 11.86)"),
     pytest.param("circular:90 mm", 2.3e9, Status.PASS, 0.95 * TM01_90, id="circular 90 mm @ 2.3 GHz"),
     pytest.param("circular:90 mm", 2.5e9, Status.WARN, 0.95 * TM01_90,
                  id="circular 90 mm @ 2.5 GHz above 0.95 f_TM01"),
@@ -205,5 +207,7 @@ def test_waveguide_band_for_every_line_kind(base_model, policy, line, f, status,
 def test_waveguide_band_coax_requirement_names_the_higher_mode(base_model, policy):
     (fd,) = evaluate(base_model, "line.waveguide-band", policy, make_feed("EIA-1-5/8", 2.45e9))
     assert "TE11 cutoff" in fd.requirement and "()" not in fd.message
+    (fw,) = evaluate(base_model, "line.waveguide-band", policy, make_feed("WR-62", 14.5e9))
+    assert "12.4–18 GHz, EIA RS-261-B band" in fw.message and "EIA RS-261-B band" in fw.requirement
     (fs,) = evaluate(base_model, "line.waveguide-band", policy, make_feed("free-space", 28e9))
     assert fs.status is Status.NOT_APPLICABLE
