@@ -188,6 +188,7 @@ class _Box:
         self.varied = np.argwhere(self.high > self.low)  # (m, 2): (layer, kind)
         lo = self.low[self.varied[:, 0], self.varied[:, 1]]
         hi = self.high[self.varied[:, 0], self.varied[:, 1]]
+        self.lo, self.hi = lo, hi
         self.centre, self.half = 0.5 * (lo + hi), 0.5 * (hi - lo)
 
     @property
@@ -198,8 +199,9 @@ class _Box:
         """Normalised points s (k, m) → parameter values (k, n, 3); the nominal row for None."""
         k = s.shape[0]
         out = np.repeat(self.nominal[None, :, :], k, axis=0)
-        if self.m:
-            out[:, self.varied[:, 0], self.varied[:, 1]] = self.centre + self.half * s
+        if self.m:  # the ends exactly as given (reported as the values used)
+            x = np.where(s <= -1.0, self.lo, np.where(s >= 1.0, self.hi, self.centre + self.half * s))
+            out[:, self.varied[:, 0], self.varied[:, 1]] = x
         return out
 
     def nominal_s(self) -> NDArray:

@@ -69,19 +69,20 @@ class MaterialSpread:
         else:
             included.append(f"{m.id} ε_r {lo:.4g}–{hi:.4g} ({self.eps_r_from})")
         lo, _, hi = self.tan_delta
+        s = self.loss_scale
+        f_ghz = self.frequency / 1e9
         if self.tan_delta_from == "default":
             missing.append(f"{m.id}: no tan δ range declared, up to "
                            f"{default_spread()['tan_delta_factor']:.3g}× the stated value assumed "
-                           f"({lo:.3g}–{hi:.3g})")
+                           f"({lo / s:.3g}–{hi / s:.3g})")
         else:
-            included.append(f"{m.id} tan δ {lo:.3g}–{hi:.3g} ({self.tan_delta_from})")
-        f_ghz = self.frequency / 1e9
+            included.append(f"{m.id} tan δ {lo / s:.3g}–{hi / s:.3g} ({self.tan_delta_from})")
         if m.frequency is None:
             missing.append(f"{m.id}: tan δ has no quoted frequency, used unscaled at "
                            f"{f_ghz:.4g} GHz (give the frequency it was measured at)")
-        elif self.loss_scale > 1.0:
+        elif s > 1.0:
             included.append(f"{m.id} tan δ quoted at {m.frequency / 1e9:.4g} GHz, scaled ∝ f to "
-                            f"{f_ghz:.4g} GHz (×{self.loss_scale:.3g})")
+                            f"{f_ghz:.4g} GHz (×{s:.3g}: {lo:.3g}–{hi:.3g})")
         elif m.frequency != self.frequency:
             included.append(f"{m.id} tan δ quoted at {m.frequency / 1e9:.4g} GHz, not scaled down "
                             f"to {f_ghz:.4g} GHz")
