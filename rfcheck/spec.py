@@ -508,22 +508,6 @@ class _CrossCheck:
             return None  # type: ignore[return-value]
         return self._model(sources)
 
-    def _material_ranges(self, mt: MaterialSpec, loc: tuple) -> None:
-        for key, nominal, name, floor in (("permittivity_range", mt.permittivity, "permittivity", 1.0),
-                                          ("loss_tangent_range", mt.loss_tangent, "loss_tangent", 0.0)):
-            rng = getattr(mt, key)
-            if rng is None:
-                continue
-            lo, hi = rng
-            if not (math.isfinite(lo) and math.isfinite(hi)):
-                self.fail(loc + (key,), f"expected finite numbers [low, high], found [{lo:g}, {hi:g}]")
-            elif lo < floor:
-                self.fail(loc + (key,), f"low end {lo:g} is below {floor:g} "
-                          f"({'ε_r ≥ 1' if floor else 'tan δ ≥ 0'})")
-            elif not lo <= nominal <= hi:
-                self.fail(loc + (key,), f"[{lo:g}, {hi:g}] must contain the {name} {nominal:g} "
-                          "(low ≤ nominal ≤ high)")
-
     # ---- catalogue look-ups (lazy: physics data tables)
 
     def _species(self, name: str, loc: tuple) -> None:
@@ -551,6 +535,22 @@ class _CrossCheck:
             return set(data.load("materials.toml").get("material", {}))
         except FileNotFoundError:
             return set()
+
+    def _material_ranges(self, mt: MaterialSpec, loc: tuple) -> None:
+        for key, nominal, name, floor in (("permittivity_range", mt.permittivity, "permittivity", 1.0),
+                                          ("loss_tangent_range", mt.loss_tangent, "loss_tangent", 0.0)):
+            rng = getattr(mt, key)
+            if rng is None:
+                continue
+            lo, hi = rng
+            if not (math.isfinite(lo) and math.isfinite(hi)):
+                self.fail(loc + (key,), f"expected finite numbers [low, high], found [{lo:g}, {hi:g}]")
+            elif lo < floor:
+                self.fail(loc + (key,), f"low end {lo:g} is below {floor:g} "
+                          f"({'ε_r ≥ 1' if floor else 'tan δ ≥ 0'})")
+            elif not lo <= nominal <= hi:
+                self.fail(loc + (key,), f"[{lo:g}, {hi:g}] must contain the {name} {nominal:g} "
+                          "(low ≤ nominal ≤ high)")
 
     def _exposure_table(self, name: str, loc: tuple) -> None:
         from rfcheck import data
