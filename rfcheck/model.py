@@ -291,7 +291,11 @@ class Feed:
 
 @dataclass(frozen=True)
 class Material:
-    """A dielectric: relative permittivity and loss tangent at `frequency` (Hz)."""
+    """A dielectric: relative permittivity and loss tangent at `frequency` (Hz).
+
+    `permittivity_range` and `loss_tangent_range` are the declared spreads (low, high),
+    each containing its nominal value; None where the spec declares none.
+    """
 
     id: str
     permittivity: float
@@ -301,6 +305,8 @@ class Material:
     confidence: str = ""
     cautions: tuple[str, ...] = ()
     thermal_conductivity: float | None = None  # W/(m K)
+    permittivity_range: tuple[float, float] | None = None
+    loss_tangent_range: tuple[float, float] | None = None
 
 
 @dataclass(frozen=True)

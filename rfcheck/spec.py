@@ -297,7 +297,14 @@ class MaterialSpec(_Strict):
     id: Id
     permittivity: float = Field(ge=1)
     loss_tangent: float = Field(ge=0)
-    frequency: Frequency | None = None
+    frequency: Frequency | None = Field(
+        None, description="frequency at which the permittivity and loss tangent are quoted")
+    permittivity_range: tuple[float, float] | None = Field(
+        None, description="[low, high] spread of the permittivity between lots, grades or "
+                          "suppliers; low ≤ permittivity ≤ high, low ≥ 1")
+    loss_tangent_range: tuple[float, float] | None = Field(
+        None, description="[low, high] spread of the loss tangent at `frequency`; "
+                          "low ≤ loss_tangent ≤ high, low ≥ 0")
     source: str = Field(min_length=1, description="where the values come from")
     thermal_conductivity: Conductivity | None = None
 
@@ -539,6 +546,8 @@ class _CrossCheck:
                               f"|Γ| = {cc.gamma:g} above 1: a passive cavity reflects at most "
                               "all the power")
         self.unique(s.material, ("material",), "material")
+        for i, mt in enumerate(s.material):
+            self._material_ranges(mt, ("material", i))
         known = self._material_ids() | {mt.id for mt in s.material}
         self.unique(s.window, ("window",), "window")
         for i, w in enumerate(s.window):
@@ -622,6 +631,22 @@ class _CrossCheck:
             return set(data.load("materials.toml").get("material", {}))
         except FileNotFoundError:
             return set()
+
+    def _material_ranges(self, mt: MaterialSpec, loc: tuple) -> None:
+        for key, nominal, name, floor in (("permittivity_range", mt.permittivity, "permittivity", 1.0),
+                                          ("loss_tangent_range", mt.loss_tangent, "loss_tangent", 0.0)):
+            rng = getattr(mt, key)
+            if rng is None:
+                continue
+            lo, hi = rng
+            if not (math.isfinite(lo) and math.isfinite(hi)):
+                self.fail(loc + (key,), f"expected finite numbers [low, high], found [{lo:g}, {hi:g}]")
+            elif lo < floor:
+                self.fail(loc + (key,), f"low end {lo:g} is below {floor:g} "
+                          f"({'ε_r ≥ 1' if floor else 'tan δ ≥ 0'})")
+            elif not lo <= nominal <= hi:
+                self.fail(loc + (key,), f"[{lo:g}, {hi:g}] must contain the {name} {nominal:g} "
+                          "(low ≤ nominal ≤ high)")
 
     def _exposure_table(self, name: str, loc: tuple) -> None:
         from rfcheck import data
@@ -727,7 +752,8 @@ class _CrossCheck:
                      w.max_absorbed_power, w.diameter)
             for w in s.window)
         materials = tuple(m.Material(mt.id, mt.permittivity, mt.loss_tangent, mt.frequency,
-                                     mt.source, "user", (), mt.thermal_conductivity)
+                                     mt.source, "user", (), mt.thermal_conductivity,
+                                     mt.permittivity_range, mt.loss_tangent_range)
                           for mt in s.material)
         exposure = None
         if s.exposure is not None:

@@ -136,3 +136,48 @@ def test_measured_table_round_trip(tmp_path, demo_text):
     (source,) = load_spec(spec).model.magnet.sources
     assert source.z == pytest.approx((0.0, 0.1, 0.2, 0.3))
     assert source.b == pytest.approx((0.12, 0.09, 0.07, 0.05))
+
+
+# ----------------------------------------------------------------------------- material spreads
+
+MATERIAL = '''
+[[material]]
+id = "lot-7-ceramic"
+permittivity = 9.8
+loss_tangent = 2e-4
+frequency = "3 GHz"
+permittivity_range = [9.6, 10.0]
+loss_tangent_range = [1e-4, 4e-4]
+source = "invented demo lot: measured by the supplier"
+'''
+
+
+def test_material_ranges_load_into_the_model(write_spec, demo_text):
+    mt = load_spec(write_spec(demo_text + MATERIAL)).model.materials[0]
+    assert mt.permittivity_range == (9.6, 10.0) and mt.loss_tangent_range == (1e-4, 4e-4)
+    assert mt.frequency == 3e9
+    bare = MATERIAL.replace("permittivity_range = [9.6, 10.0]\n", "").replace(
+        "loss_tangent_range = [1e-4, 4e-4]\n", "")
+    mt = load_spec(write_spec(demo_text + bare, "bare.toml")).model.materials[0]
+    assert mt.permittivity_range is None and mt.loss_tangent_range is None
+
+
+@pytest.mark.parametrize("old, new, key, fragment", [
+    pytest.param("[9.6, 10.0]", "[9.9, 10.0]", "permittivity_range", "must contain the permittivity 9.8",
+                 id="nominal-below-range"),
+    pytest.param("[9.6, 10.0]", "[0.5, 10.0]", "permittivity_range", "below 1", id="eps-below-one"),
+    pytest.param("[1e-4, 4e-4]", "[-1e-4, 4e-4]", "loss_tangent_range", "below 0",
+                 id="negative-loss-tangent"),
+    pytest.param("[1e-4, 4e-4]", "[4e-4, 1e-4]", "loss_tangent_range", "must contain",
+                 id="low-above-high"),
+    pytest.param("[9.6, 10.0]", "[9.6, 9.8, 10.0]", "permittivity_range", "",
+                 id="three-numbers"),
+])
+def test_bad_material_range_names_key_and_line(write_spec, demo_text, old, new, key, fragment):
+    text = demo_text + MATERIAL.replace(old, new)
+    with pytest.raises(InputError) as info:
+        load_spec(write_spec(text))
+    hit = [p for p in info.value.problems if p.path.startswith(f"material[lot-7-ceramic].{key}")]
+    assert hit, [str(p) for p in info.value.problems]
+    assert fragment in hit[0].message
+    assert hit[0].line == _line_of(text, f"{key} = ")

@@ -55,11 +55,16 @@ __all__ = [
     "ReflectionBand",
     "ThicknessWorstCase",
     "complex_permittivity",
+    "loss_tangent_scale",
     "te10_embedding",
     "guide_embedding",
     "plane_wave_embedding",
     "line_embedding",
     "window_response",
+    "Ports",
+    "embedding_ports",
+    "layer_matrix",
+    "scattering",
     "reflection_band",
     "worst_reflection_over_thickness",
     "window_materials",
@@ -70,12 +75,13 @@ __all__ = [
 class Layer(NamedTuple):
     """One homogeneous window layer.
 
-    eps_r: real relative permittivity ε'; tan_delta: loss tangent; thickness: m (a scalar,
-    or an array that broadcasts against the frequency array).
+    eps_r: real relative permittivity ε'; tan_delta: loss tangent; thickness: m. Each is a
+    scalar or an array that broadcasts against the frequency array (e.g. shape (n, 1)
+    against f of shape (nf,): n variants of the stack evaluated in one call).
     """
 
-    eps_r: float
-    tan_delta: float
+    eps_r: ArrayLike
+    tan_delta: ArrayLike
     thickness: ArrayLike
 
 
@@ -136,6 +142,28 @@ def complex_permittivity(eps_r: ArrayLike, tan_delta: ArrayLike) -> NDArray:
     return np.asarray(eps_r, dtype=float) * (1.0 - 1j * np.asarray(tan_delta, dtype=float))
 
 
+def loss_tangent_scale(quoted_frequency: float | None, frequency: float) -> float:
+    """Factor on a loss tangent quoted at ``quoted_frequency`` for use at ``frequency`` (Hz).
+
+    A conservative rule: scaled up ∝ f above the quoted frequency, never scaled down
+    (factor max(1, f / f_quoted)); 1 when no quoted frequency is known.
+
+    Why ∝ f: the intrinsic (lattice-phonon) loss of low-loss crystals and ceramics far below
+    their infrared resonances gives ε'' ∝ ω, i.e. tan δ ∝ f at constant ε', which is why
+    microwave-ceramic suppliers quote a Q·f product (Q = 1/tan δ) that holds roughly
+    constant with frequency (V. L. Gurevich & A. K. Tagantsev, Adv. Phys. 40 (1991) 719;
+    the Q·f figure of merit is common practice; both from memory). Sapphire follows it:
+    ~1e-5 at 10 GHz, ~1e-4 to 2e-4 at 100–170 GHz (J. Krupka et al., Meas. Sci. Technol. 10
+    (1999) 387, from memory). Glasses such as fused silica rise more slowly, so the rule
+    over-estimates their loss above the quoted frequency: conservative. Why never down:
+    below the quoted frequency, defect, impurity and conduction losses (roughly constant or
+    rising as f falls) can dominate, so a smaller tan δ is not assured.
+    """
+    if quoted_frequency is None or not quoted_frequency > 0:
+        return 1.0
+    return max(1.0, float(frequency) / float(quoted_frequency))
+
+
 def te10_embedding(a: float) -> Embedding:
     """TE10 mode of an air-filled rectangular guide of broad inner dimension a (m): f_c = c/(2a)."""
     return Embedding(cutoff=C / (2.0 * a))
@@ -166,14 +194,15 @@ def line_embedding(line) -> Embedding:
     return Embedding(eps_incident=eps, eps_exit=eps)
 
 
-def _propagation_constant(kt2: ArrayLike, k0sq: NDArray, eps_r: float, tan_delta: float) -> NDArray:
+def _propagation_constant(kt2: ArrayLike, k0sq: NDArray, eps_r: ArrayLike,
+                          tan_delta: ArrayLike) -> NDArray:
     """γ = √(k_t² − k0² ε_r (1 − j tan δ)), principal root (Re γ ≥ 0).
 
     The argument is assembled from its real part and a non-negative imaginary part
     k0² ε_r tan δ (tan δ ≥ 0, passive layer), so a lossless propagating layer lands on the
     +j branch (γ = jβ) and never on the −j branch through a signed zero.
     """
-    x = np.empty(np.broadcast(kt2, k0sq).shape, dtype=complex)
+    x = np.empty(np.broadcast(kt2, k0sq, eps_r, tan_delta).shape, dtype=complex)
     x.real = kt2 - k0sq * eps_r
     x.imag = k0sq * (eps_r * tan_delta)
     return np.sqrt(x)
@@ -245,6 +274,34 @@ def window_response(f: ArrayLike, layers: Sequence[Layer],
     impedances, Pozar table 4.2. exp(+jωt) convention, ε = ε_r(1 − j tan δ). A layer whose
     attenuation exceeds ~700 Np (far beyond any window) overflows to NaN.
     """
+    ports = embedding_ports(f, embedding)
+    a = b = c = d = None
+    for layer in layers:
+        la, lb, lc, ld = layer_matrix(ports, layer)
+        if a is None:
+            a, b, c, d = la, lb, lc, ld
+        else:
+            a, b, c, d = a * la + b * lc, a * lb + b * ld, c * la + d * lc, c * lb + d * ld
+    if a is None:  # no layers: the identity
+        a = d = np.ones_like(ports.k0, dtype=complex)
+        b = c = np.zeros_like(a)
+    return scattering(ports, a, b, c, d)
+
+
+class Ports(NamedTuple):
+    """What every layer and the ABCD → S conversion share at one set of frequencies:
+    k0 (rad/m), the transverse wavenumber squared kt2, the normalised real impedances z1,
+    z2 of the incident and exit media (NaN where they do not propagate) and the polarisation."""
+
+    k0: NDArray
+    kt2: ArrayLike
+    z1: NDArray
+    z2: NDArray
+    te: bool
+
+
+def embedding_ports(f: ArrayLike, embedding: Embedding = Embedding()) -> Ports:
+    """The :class:`Ports` of ``embedding`` at frequencies ``f`` (Hz)."""
     te = _check_embedding(embedding)
     f = np.asarray(f, dtype=float)
     k0 = TWO_PI * f / C
@@ -254,21 +311,24 @@ def window_response(f: ArrayLike, layers: Sequence[Layer],
         kt2 = (k0 * math.sqrt(embedding.eps_incident) * math.sin(embedding.angle)) ** 2
     z1 = _embedding_impedance(kt2, k0, embedding.eps_incident, te)
     z2 = _embedding_impedance(kt2, k0, embedding.eps_exit, te)
-    k0sq = k0 * k0
-    a = b = c = d = None
-    for layer in layers:
-        if layer.tan_delta < 0.0:
-            raise ValueError(f"loss tangent must be non-negative (passive layer), got {layer.tan_delta}")
-        eps = complex(complex_permittivity(layer.eps_r, layer.tan_delta))
-        gamma = _propagation_constant(kt2, k0sq, float(layer.eps_r), float(layer.tan_delta))
-        la, lb, lc, ld = _layer_matrix(gamma, k0, eps, np.asarray(layer.thickness, dtype=float), te)
-        if a is None:
-            a, b, c, d = la, lb, lc, ld
-        else:
-            a, b, c, d = a * la + b * lc, a * lb + b * ld, c * la + d * lc, c * lb + d * ld
-    if a is None:  # no layers: the identity
-        a = d = np.ones_like(k0, dtype=complex)
-        b = c = np.zeros_like(a)
+    return Ports(k0, kt2, z1, z2, te)
+
+
+def layer_matrix(ports: Ports, layer: Layer) -> tuple[NDArray, NDArray, NDArray, NDArray]:
+    """ABCD entries (normalised to η0) of one layer at the frequencies of ``ports``."""
+    eps_r = np.asarray(layer.eps_r, dtype=float)
+    tan_delta = np.asarray(layer.tan_delta, dtype=float)
+    if np.any(tan_delta < 0.0):
+        raise ValueError(f"loss tangent must be non-negative (passive layer), got {layer.tan_delta}")
+    eps = complex_permittivity(eps_r, tan_delta)
+    gamma = _propagation_constant(ports.kt2, ports.k0 * ports.k0, eps_r, tan_delta)
+    return _layer_matrix(gamma, ports.k0, eps, np.asarray(layer.thickness, dtype=float), ports.te)
+
+
+def scattering(ports: Ports, a, b, c, d) -> WindowResponse:
+    """Γ, S21, R, T and A of a stack with ABCD matrix (a, b, c, d) between the ports
+    (Pozar table 4.2, unequal real reference impedances)."""
+    z1, z2 = ports.z1, ports.z2
     with np.errstate(invalid="ignore"):
         den = a * z2 + b + c * z1 * z2 + d * z1
         gam = (a * z2 + b - c * z1 * z2 - d * z1) / den
@@ -290,6 +350,10 @@ def reflection_band(layers: Sequence[Layer], f_centre: float, limit: float,
     contains the centre is returned; a ripple that dips under the limit again further out
     is not joined to it. If the grid is too coarse, a narrow excursion above the limit
     between two samples can be missed: raise ``points`` for thick or many-layer stacks.
+
+    Layer parameters may be arrays of shape (k, 1) (k variants of the stack): the band is
+    then the one where every variant stays under the limit (the worst of them at each
+    frequency), which is the intersection of their contiguous bands.
     """
     if not 0.0 < span < 1.0:
         raise ValueError(f"span must lie in (0, 1), got {span}")
@@ -299,8 +363,10 @@ def reflection_band(layers: Sequence[Layer], f_centre: float, limit: float,
     grid[ic] = f_centre
 
     def below(freq):
-        g = np.abs(window_response(freq, layers, embedding).gamma)
-        return np.nan_to_num(g, nan=np.inf) <= limit
+        g = np.nan_to_num(np.abs(window_response(freq, layers, embedding).gamma), nan=np.inf)
+        if g.ndim > 1:  # variants of the stack (leading axes): the worst of them
+            g = g.reshape(-1, g.shape[-1]).max(axis=0)
+        return g <= limit
 
     ok = below(grid)
     if not ok[ic]:

@@ -28,8 +28,9 @@ def _limit(run) -> float | None:
 
 
 def window_figure(run) -> dict | None:
-    """|Γ| versus frequency for each window: nominal thickness (line), spread over the
-    thickness tolerance (band), the feed's f ± tolerance (shaded) and the limit (dashed)."""
+    """|Γ| versus frequency for each window: nominal stack (line), the envelope of the worst
+    combinations of thickness, ε_r and tan δ found by the window analysis (band), the feed's
+    f ± tolerance (shaded) and the limit (dashed)."""
     ctx, model = run.context, run.model
     if ctx is None or model is None or not model.windows:
         return None
@@ -56,8 +57,8 @@ def window_figure(run) -> dict | None:
         with np.errstate(invalid="ignore"):
             if g.shape[0] > 1 and np.isfinite(g).any():
                 ax.fill_between(fg, np.nanmin(g, axis=0), np.nanmax(g, axis=0), color="#4c72b0",
-                                alpha=0.25, lw=0, label="thickness tolerance")
-        ax.plot(fg, g[a.nominal], color="#1f3f73", lw=1.5, label="nominal thickness")
+                                alpha=0.25, lw=0, label="worst combinations found")
+        ax.plot(fg, g[a.nominal], color="#1f3f73", lw=1.5, label="nominal stack")
         lo, hi = feed.frequency - feed.frequency_tolerance, feed.frequency + feed.frequency_tolerance
         if hi > lo:
             ax.axvspan(lo / 1e9, hi / 1e9, color="#dd8452", alpha=0.25, lw=0,
@@ -81,6 +82,8 @@ def window_figure(run) -> dict | None:
             "svg": _svg(fig, "window"),
             "caption": "Magnitude of the reflection coefficient of each window in its feed's line "
                        "(TE10/TE11 guide mode, or a plane wave at normal incidence): nominal "
-                       "thickness (line) and its spread over the thickness tolerance (band); "
+                       "stack (line) and the envelope of the worst combinations of thickness, "
+                       "permittivity and loss tangent within their spreads that the window "
+                       "rules found (band); "
                        "shaded: the feed's f ± tolerance; dashed: the |Γ| limit of the policy; "
                        "dot: the worst point judged by window.reflection."}

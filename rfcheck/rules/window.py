@@ -1,8 +1,9 @@
 """Dielectric windows in each feed's line: reflection, reflection band and absorbed power.
 
 All three rules read one shared computation (rfcheck.rules.window_data.window_analysis): the
-window's response over f ± tolerance and every thickness-tolerance combination, cached on
-the Context.
+window's worst cases over f ± tolerance and the spread of every layer (thickness tolerance,
+ε_r and tan δ ranges of its material, tan δ scaled to the feed frequency), found by the
+bounded search of rfcheck.physics.window_spread and cached on the Context.
 """
 
 from __future__ import annotations
@@ -15,6 +16,8 @@ from rfcheck.physics.rfpower import absorbed_power, reflected_power, return_loss
 
 from .context import Context
 from .registry import Option, rule
+from rfcheck.physics.window_spread import SpreadWorst, StackPoint
+
 from .window_data import BAND_SPAN, WindowAnalysis, embedding_text, window_analysis
 
 _NO_WAVE = "the line does not propagate over f ± tolerance (see line.waveguide-band)"
@@ -24,14 +27,19 @@ def _mm(t: float) -> str:
     return f"{t * 1e3:.4g} mm"
 
 
-def _where(a: WindowAnalysis, f: float, thickness: tuple[float, ...]) -> dict[str, Quantity]:
+_FIELD = {"thickness": "thickness", "permittivity": "eps_r", "loss_tangent": "tan_delta"}
+_UNIT = {"thickness": "m", "permittivity": "1", "loss_tangent": "1"}
+
+
+def _where(a: WindowAnalysis, f: float | None, point: StackPoint) -> dict[str, Quantity]:
+    """The worst-case point: frequency and every parameter that has a spread."""
     out: dict[str, Quantity] = {}
-    if a.frequency.size > 1:
+    if f is not None and a.frequency.size > 1:
         out["frequency"] = Quantity(f, "Hz")
-    varied = [i for i, la in enumerate(a.window.layers) if la.thickness_tolerance > 0]
-    for i in varied:
-        name = "thickness" if len(a.window.layers) == 1 else f"thickness_{i + 1}"
-        out[name] = Quantity(thickness[i], "m")
+    multi = len(a.window.layers) > 1
+    for i, kind in a.varied():
+        name = f"{kind}_{i + 1}" if multi else kind
+        out[name] = Quantity(getattr(point, _FIELD[kind])[i], _UNIT[kind])
     return out
 
 
@@ -39,8 +47,28 @@ def _w(p: float) -> str:
     return Quantity(p, "W").text()
 
 
-def _stack_text(thickness: tuple[float, ...]) -> str:
-    return " + ".join(_mm(t) for t in thickness)
+def _point_text(a: WindowAnalysis, point: StackPoint) -> str:
+    """Each layer's thickness, ε_r and tan δ at a combination, in words."""
+    parts = [f"{_mm(t)}, ε_r {e:.4g}, tan δ {d:.3g}"
+             for t, e, d in zip(point.thickness, point.eps_r, point.tan_delta)]
+    if len(parts) == 1:
+        return parts[0]
+    return "; ".join(f"layer {i + 1} ({la.material}) {p}"
+                     for i, (la, p) in enumerate(zip(a.window.layers, parts)))
+
+
+def _spread_text(a: WindowAnalysis) -> str:
+    included, missing = a.notes()
+    text = ("spreads included: " + "; ".join(included)) if included else "no spread included"
+    if missing:
+        text += "; not declared or flagged: " + "; ".join(missing)
+    return text
+
+
+def _search_text(w: SpreadWorst, nf: int) -> str:
+    return (f"{w.evaluations} combinations × {nf} frequencies searched ({w.method})"
+            + ("" if w.converged else "; the search stopped at its budget, so a worse "
+               "combination may exist"))
 
 
 def _no_windows(ctx: Context, requirement: str) -> Iterator[Finding]:
@@ -49,8 +77,8 @@ def _no_windows(ctx: Context, requirement: str) -> Iterator[Finding]:
 
 
 @rule("window.reflection", severity=Severity.ERROR,
-      summary="Each window's worst reflection |Γ| over f ± tolerance and the thickness "
-              "tolerance stays under the limit.",
+      summary="Each window's worst reflection |Γ| over f ± tolerance, the thickness "
+              "tolerance and the material spreads stays under the limit.",
       options={"max_gamma": Option("ratio", "highest allowed |Γ| of a window "
                                             "(VSWR = (1 + |Γ|)/(1 − |Γ|))")},
       applies="every window, in the dominant mode of its feed's line (TE10/TE11 guide mode; "
@@ -61,16 +89,24 @@ def window_reflection(ctx: Context, *, max_gamma: float) -> Iterator[Finding]:
     layers filling the line's cross-section) embedded in its feed's line: the TE10 wave
     impedances of a rectangular guide (TE11 of a circular guide), a plane wave at normal
     incidence for free space and coaxial line. The worst |Γ| over the feed's band
-    f ± tolerance (41 frequencies) and every combination of the layer thicknesses at
-    −tol, nominal and +tol is compared with the limit. The message also gives VSWR,
-    return loss and the reflected power at the feed's peak power.
+    f ± tolerance (41 frequencies) and the box of every layer's parameters (thickness
+    ± tolerance; ε_r and tan δ over the material's range: declared in the spec, from the
+    library, or the stated default spread where none is declared; tan δ scaled to the top
+    of the band) is compared with the limit. The worst case is found by the bounded search
+    of rfcheck.physics.window_spread (the whole three-level grid for up to five varied
+    parameters, else the worst vertices of the linearised response and a coordinate ascent,
+    at most 4096 combinations). The finding names the frequency and each varied parameter
+    at the worst point, which spreads were included and which were not declared. The
+    message also gives VSWR, return loss and the reflected power at the feed's peak power.
 
     Why it matters
     The reflected wave returns to the generator: it loads the circulator, pulls a magnetron
     off frequency and raises the standing wave (and so the peak field) between the
     generator and the window. A window near an odd quarter-wave thickness reflects most:
-    VSWR = ε_r for a lossless slab in free space. The reflection of the plasma load adds to
-    this and is judged by the load.* rules.
+    VSWR = ε_r for a lossless slab in free space. A half-wave window is matched only at its
+    nominal permittivity and thickness: the part as supplied, from another lot or grade,
+    reflects. The reflection of the plasma load adds to this and is judged by the load.*
+    rules.
 
     Equation
     Transfer (ABCD) matrix of the stack, each layer ε = ε_r(1 − j tan δ), in the mode's
@@ -84,32 +120,36 @@ def window_reflection(ctx: Context, *, max_gamma: float) -> Iterator[Finding]:
     References
     M. Born & E. Wolf, Principles of Optics, 7th ed. (1999), §1.6; D. M. Pozar, Microwave
     Engineering, 4th ed. (2012), §2.3, §3.3, §4.4. Material data: rfcheck/data/materials.toml
-    (ε_r, tan δ at the stated frequency; measured values of the supplied part take precedence).
+    (ε_r, tan δ and their ranges at the stated frequency; measured values of the supplied
+    part take precedence); loss-tangent frequency rule:
+    rfcheck.physics.multilayer.loss_tangent_scale.
     """
     requirement = f"|Γ| ≤ {max_gamma:.3g} (VSWR ≤ {float(vswr(max_gamma)):.3g})"
     yield from _no_windows(ctx, requirement)
     for window in ctx.model.windows:
         a = window_analysis(ctx, window)
         subject = f"window {window.id}"
-        g, f, t = a.worst_gamma
-        where = _where(a, f, t)
+        w = a.reflection
+        g, f = w.value, w.frequency
         if math.isnan(g):
             yield ctx.finding(subject, requirement, passed=False,
                               message=f"|Γ| is undefined: {_NO_WAVE}",
                               measured=Quantity(None, "1", _NO_WAVE),
-                              limit=Quantity(max_gamma, "1"), worst_case=where)
+                              limit=Quantity(max_gamma, "1"),
+                              worst_case=_where(a, f, a.nominal_point))
             continue
         p_r = float(reflected_power(a.feed.power, g))
         rl = float(return_loss_db(g)) if g > 0 else math.inf
         passed = g <= max_gamma
         verb = "within" if passed else "above"
         msg = (f"worst |Γ| {g:.3g} (VSWR {float(vswr(g)):.3g}, return loss {rl:.3g} dB) at "
-               f"{f / 1e9:.5g} GHz and thickness {_stack_text(t)}, {verb} the limit {max_gamma:.3g}; "
-               f"nominal |Γ| {a.nominal_gamma:.3g}; reflected power up to {_w(p_r)} of "
-               f"{_w(a.feed.power)} peak; {embedding_text(a)}")
+               f"{f / 1e9:.5g} GHz with {_point_text(a, w.point)}, {verb} the limit "
+               f"{max_gamma:.3g}; nominal |Γ| {a.nominal_gamma:.3g}; reflected power up to "
+               f"{_w(p_r)} of {_w(a.feed.power)} peak; {embedding_text(a)}. {_spread_text(a)}. "
+               f"{_search_text(w, a.frequency.size)}")
         yield ctx.finding(subject, requirement, passed=passed, message=msg,
                           measured=Quantity(g, "1"), limit=Quantity(max_gamma, "1"),
-                          margin=Quantity(max_gamma - g, "1"), worst_case=where)
+                          margin=Quantity(max_gamma - g, "1"), worst_case=_where(a, f, w.point))
 
 
 @rule("window.band", severity=Severity.WARNING,
@@ -124,18 +164,22 @@ def window_reflection(ctx: Context, *, max_gamma: float) -> Iterator[Finding]:
 def window_band(ctx: Context, *, max_gamma: float, min_margin: float) -> Iterator[Finding]:
     """What it checks
     The contiguous band around the feed frequency over which |Γ| of the window stays at or
-    below max_gamma for every thickness within tolerance (the intersection of the bands of
-    all thickness combinations). It must reach beyond f ± tolerance by min_margin · f on
-    both sides. The finding reports the binding band edge, the edge it must reach and the
-    margin in Hz; the band is searched over f (1 ± 0.5), and an edge beyond that span is
-    reported as "at least".
+    below max_gamma for every combination of its layers' thicknesses, permittivities and
+    loss tangents within their spreads (as window.reflection): the intersection of the
+    bands of the worst combinations, found by searching each side of the band for a
+    combination that exceeds the limit inside it until none does (at most four rounds,
+    rfcheck.physics.window_spread.band_over_spread). It must reach beyond f ± tolerance by
+    min_margin · f on both sides. The finding reports the binding band edge, the
+    combination that binds it, the edge it must reach and the margin in Hz; the band is
+    searched over f (1 ± 0.5), and an edge beyond that span is reported as "at least".
 
     Why it matters
-    window.reflection judges the feed's stated band. The resonance of a window also moves
-    with the permittivity of the supplied part (grade and supplier spread, and ε_r rising
-    with temperature under power) and with the thickness of the part as made; a window whose
-    band just covers the feed has no room for either. A narrow band is a reason to measure
-    the part, not always a reason to reject it: this rule warns.
+    window.reflection judges the feed's stated band. The resonance of a window moves with
+    the permittivity of the supplied part (grade and supplier spread, included here, and ε_r
+    rising with temperature under power, not included) and with the thickness of the part
+    as made (included); a window whose band just covers the feed has no room for the rest.
+    A narrow band is a reason to measure the part, not always a reason to reject it: this
+    rule warns.
 
     Equation
     |Γ(f)| ≤ max_gamma on [f − tol − m f, f + tol + m f]; band edges from
@@ -145,7 +189,8 @@ def window_band(ctx: Context, *, max_gamma: float, min_margin: float) -> Iterato
     max_gamma: the |Γ| bounding the band (default 0.2, VSWR 1.5, as window.reflection).
     min_margin: required margin as a fraction of the feed frequency (default 1 %: the
     resonance of a half-wave window scales as 1/√ε_r, and the ε_r spread of 99.5 % alumina,
-    9.7–9.9, shifts it by 1 %).
+    9.7–9.9, shifts it by 1 %; the declared spreads now enter the band itself, so the margin
+    is headroom for what is not declared, such as the rise of ε_r with temperature).
 
     References
     D. M. Pozar, Microwave Engineering, 4th ed. (2012), §2.3, §4.4; ε_r spreads:
@@ -160,31 +205,41 @@ def window_band(ctx: Context, *, max_gamma: float, min_margin: float) -> Iterato
         subject = f"window {window.id}"
         need_lo = feed.frequency - feed.frequency_tolerance - min_margin * feed.frequency
         need_hi = feed.frequency + feed.frequency_tolerance + min_margin * feed.frequency
-        lo, hi, lo_open, hi_open = a.band(max_gamma)
+        b = a.band_detail(max_gamma)
+        lo, hi, lo_open, hi_open = b.low, b.high, b.low_open, b.high_open
         if math.isnan(lo):
             g0 = a.nominal_gamma
-            why = _NO_WAVE if math.isnan(g0) else \
-                f"|Γ| exceeds {max_gamma:.3g} at the feed frequency for some thickness in tolerance"
+            if math.isnan(g0) or b.low_point is None:
+                why = _NO_WAVE
+            else:
+                why = (f"|Γ| exceeds {max_gamma:.3g} at the feed frequency with "
+                       f"{_point_text(a, b.low_point)}")
             nominal = "" if math.isnan(g0) else f" (nominal |Γ| {g0:.3g})"
+            worst = {} if b.low_point is None else _where(a, None, b.low_point)
             yield ctx.finding(subject, requirement, passed=False,
-                              message=f"no reflection band: {why}{nominal}",
+                              message=f"no reflection band: {why}{nominal}. {_spread_text(a)}",
                               measured=Quantity(None, "Hz", "no band: |Γ| above the limit at f"),
-                              limit=Quantity(need_lo, "Hz"))
+                              limit=Quantity(need_lo, "Hz"), worst_case=worst)
             continue
         m_lo, m_hi = need_lo - lo, hi - need_hi
         if m_lo <= m_hi:
-            edge, need, margin, is_open, side = lo, need_lo, m_lo, lo_open, "low"
+            edge, need, margin, is_open, side, point = lo, need_lo, m_lo, lo_open, "low", b.low_point
         else:
-            edge, need, margin, is_open, side = hi, need_hi, m_hi, hi_open, "high"
+            edge, need, margin, is_open, side, point = hi, need_hi, m_hi, hi_open, "high", b.high_point
         at_least = "at least " if is_open else ""
 
         def edge_text(x, op):
             return f"{'beyond ' if op else ''}{x / 1e9:.5g} GHz"
 
+        binding = "" if is_open else f", bound by {_point_text(a, point)}"
         msg = (f"|Γ| ≤ {max_gamma:.3g} from {edge_text(lo, lo_open)} to {edge_text(hi, hi_open)} "
-               f"(searched ±{BAND_SPAN:.0%} of f); the {side} edge must reach {need / 1e9:.5g} GHz: "
-               f"margin {at_least}{margin / 1e6:.4g} MHz")
+               f"for every combination searched (searched ±{BAND_SPAN:.0%} of f); the {side} "
+               f"edge must reach {need / 1e9:.5g} GHz: margin {at_least}{margin / 1e6:.4g} MHz"
+               f"{binding}. {_spread_text(a)}. {b.evaluations} combinations searched, "
+               f"{b.combinations} in the worst set"
+               + ("" if b.converged else "; the last search still found a worse combination"))
         worst = {"band_low": Quantity(lo, "Hz"), "band_high": Quantity(hi, "Hz")}
+        worst |= _where(a, None, point)
         yield ctx.finding(subject, requirement, passed=margin >= 0, message=msg,
                           measured=Quantity(edge, "Hz"), limit=Quantity(need, "Hz"),
                           margin=Quantity(margin, "Hz"), worst_case=worst)
@@ -199,7 +254,9 @@ def window_band(ctx: Context, *, max_gamma: float, min_margin: float) -> Iterato
 def window_absorbed_power(ctx: Context, *, max_fraction: float) -> Iterator[Finding]:
     """What it checks
     The power dissipated in the window, P_abs = A · P_avg, with the absorbed fraction
-    A = 1 − |Γ|² − |T|² at its worst over f ± tolerance and the thickness tolerance, and the
+    A = 1 − |Γ|² − |T|² at its worst over f ± tolerance, the thickness tolerance and the
+    permittivity range, every loss tangent at the top of its range (scaled up ∝ f above the
+    frequency it is quoted at, never down; flagged where no frequency is quoted), and the
     feed's average power P_avg = peak × duty cycle, against max_fraction times the window's
     max_absorbed_power. For a single-layer window with a diameter and a material with a
     thermal conductivity, the message adds the centre-to-edge temperature rise of an
@@ -209,7 +266,9 @@ def window_absorbed_power(ctx: Context, *, max_fraction: float) -> Iterator[Find
     Absorbed power heats the window. Ceramics crack under the radial thermal stress of a hot
     centre, brazes and seals fail, and the loss tangent of alumina rises steeply with
     temperature (thermal runaway in CW windows). The rating must come from the window's
-    supplier or its thermal design; this rule carries the feed's power to it.
+    supplier or its thermal design; this rule carries the feed's power to it. To first order
+    in the losses A = Σ tan δ_i · ω ε0 ε_i ∫|E|² dV / P_inc over the layers: it grows with
+    every tan δ, which is why the top of each range is the worst case.
 
     Equation
     P_abs = (1 − |Γ|² − |T|²) · P_peak · duty;  ΔT ≈ P_abs / (4π k t) (uniform heating,
@@ -234,14 +293,14 @@ def window_absorbed_power(ctx: Context, *, max_fraction: float) -> Iterator[Find
                                      "the window gives no max_absorbed_power")
             continue
         a = window_analysis(ctx, window)
-        frac, f, t = a.worst_absorptance
-        where = _where(a, f, t)
+        w = a.absorption
+        frac, f, t = w.value, w.frequency, w.point.thickness
         limit = max_fraction * window.max_absorbed_power
         if math.isnan(frac):
             yield ctx.finding(subject, requirement, passed=False,
                               message=f"absorbed power is undefined: {_NO_WAVE}",
                               measured=Quantity(None, "W", _NO_WAVE), limit=Quantity(limit, "W"),
-                              worst_case=where)
+                              worst_case=_where(a, f, a.nominal_point))
             continue
         p_avg = a.feed.average_power
         p_abs = float(absorbed_power(p_avg, frac))
@@ -250,8 +309,10 @@ def window_absorbed_power(ctx: Context, *, max_fraction: float) -> Iterator[Find
                    f"(uniform-heating estimate, k = {a.materials[0].thermal_conductivity:.3g} W/(m K))"
                    if rise is not None else f"; no temperature estimate ({why})")
         msg = (f"{_w(p_abs)} absorbed ({frac:.3g} of {_w(p_avg)} average) at "
-               f"{f / 1e9:.5g} GHz and thickness {_stack_text(t)}, against {_w(limit)}"
-               f"{thermal}")
+               f"{f / 1e9:.5g} GHz with {_point_text(a, w.point)} (every tan δ at the top of "
+               f"its range: the absorbed power grows with each), against {_w(limit)}"
+               f"{thermal}; nominal {_w(float(absorbed_power(p_avg, a.nominal_absorptance)))}. "
+               f"{_spread_text(a)}. {_search_text(w, a.frequency.size)}")
         yield ctx.finding(subject, requirement, passed=p_abs <= limit, message=msg,
                           measured=Quantity(p_abs, "W"), limit=Quantity(limit, "W"),
-                          margin=Quantity(limit - p_abs, "W"), worst_case=where)
+                          margin=Quantity(limit - p_abs, "W"), worst_case=_where(a, f, w.point))

@@ -1,34 +1,52 @@
 """The window numbers shared by the window rules, `line.breakdown`, the characteristics and the
-report figure: each window's response over its feed's frequency band and thickness corners,
-computed once per run and cached on the Context.
+report figure: each window's worst cases over its feed's frequency band and the spread of
+every layer (thickness ± tolerance, ε_r and tan δ over their ranges), computed once per run
+and cached on the Context.
 
-Materials come from the library (``rfcheck/data/materials.toml``) and from the spec's
-[[material]] tables; a spec material of the same id wins over the library.
+Materials and their spreads come from :mod:`rfcheck.rules.window_material` (library, spec,
+or the stated default spread; loss tangents scaled to the feed's frequency). The searches
+are :func:`rfcheck.physics.window_spread.worst_over_spread` (|Γ| and the absorbed fraction)
+and :func:`~rfcheck.physics.window_spread.band_over_spread` (the reflection band): bounded
+in cost whatever the number of layers, with the argument in that module's docstring.
+
+Budget of one analysis: two searches of at most ``MAX_COMBINATIONS`` combinations over
+``FREQUENCY_POINTS`` frequencies, and per band limit asked for at most
+``(1 + 2 · BAND_ITERATIONS) · BAND_COMBINATIONS`` combinations over ``BAND_SIDE_POINTS``
+frequencies plus the band scans of at most ``BAND_ITERATIONS · 2 + 3`` stacks over
+``BAND_POINTS`` frequencies: ``ANALYSIS_COMBINATIONS`` below, whatever the stack.
 """
 
 from __future__ import annotations
 
-import itertools
 import math
 from dataclasses import dataclass, field
 
 import numpy as np
 
 from rfcheck.findings import quantity_json as _q
-from rfcheck.model import Feed, SourceModel, Window
-from rfcheck.physics.multilayer import (
-    Embedding,
-    Layer,
-    line_embedding,
-    reflection_band,
-    window_materials,
-    window_response,
-)
+from rfcheck.model import Feed, Window
+from rfcheck.physics.multilayer import Embedding, line_embedding
 from rfcheck.physics.rfpower import disc_temperature_rise, return_loss_db, vswr
 from rfcheck.physics.waveguide import Line, guide_wavelength, line_from_name
+from rfcheck.physics.window_spread import (
+    BAND_COMBINATIONS,
+    BAND_ITERATIONS,
+    MAX_COMBINATIONS,
+    MAX_LAYERS,
+    LayerSpread,
+    SpreadBand,
+    SpreadWorst,
+    StackPoint,
+    band_over_spread,
+    spread_response,
+    worst_over_spread,
+)
 
-__all__ = ["FREQUENCY_POINTS", "BAND_POINTS", "BAND_SPAN", "WindowMaterial", "WindowAnalysis",
-           "resolve_material", "window_analysis", "embedding_text", "window_characteristics"]
+from .window_material import MaterialSpread, WindowMaterial, material_spread, resolve_material
+
+__all__ = ["FREQUENCY_POINTS", "BAND_POINTS", "BAND_SPAN", "ANALYSIS_COMBINATIONS",
+           "WindowMaterial", "WindowAnalysis", "resolve_material", "window_analysis",
+           "embedding_text", "window_characteristics"]
 
 #: Frequencies sampled across f ± tolerance (odd: the nominal frequency is a sample; the
 #: envelope's 5 frequencies are among them).
@@ -37,52 +55,22 @@ FREQUENCY_POINTS = 41
 BAND_SPAN = 0.5
 #: Samples over that search span before the band edges are refined by bisection.
 BAND_POINTS = 2001
-#: Above this many thickness combinations (3^n for n toleranced layers) only the corners
-#: (2^n) are evaluated.
-MAX_COMBINATIONS = 729
+#: Most stack combinations one analysis evaluates with one band limit (module docstring):
+#: the reflection and absorption searches and one band, whatever the number of layers.
+ANALYSIS_COMBINATIONS = 2 * MAX_COMBINATIONS + (1 + 2 * BAND_ITERATIONS) * BAND_COMBINATIONS
 
-
-@dataclass(frozen=True)
-class WindowMaterial:
-    """A window material as used in one run (library values, or the spec's own)."""
-
-    id: str
-    eps_r: float
-    tan_delta: float
-    origin: str  # "library" or "spec"
-    source: str = ""
-    thermal_conductivity: float | None = None
-    cautions: tuple[str, ...] = ()
-
-
-def resolve_material(model: SourceModel, material_id: str) -> WindowMaterial:
-    """A spec [[material]] of that id, else the library entry; ValueError if neither exists."""
-    for m in model.materials:
-        if m.id == material_id:
-            return WindowMaterial(m.id, float(m.permittivity), float(m.loss_tangent), "spec",
-                                  m.source, m.thermal_conductivity, tuple(m.cautions))
-    table = window_materials()
-    if material_id not in table:
-        raise ValueError(f"unknown window material {material_id!r}: define it in a [[material]] "
-                         f"table or use one of {', '.join(sorted(table))}")
-    row = table[material_id]
-    k = row.get("thermal_conductivity")
-    return WindowMaterial(material_id, float(row["eps_r"]), float(row["tan_delta"]), "library",
-                          str(row.get("source", "")), None if k is None else float(k),
-                          tuple(row.get("cautions", ())))
-
-
-def _levels(n_tol: int) -> tuple[float, ...]:
-    return (-1.0, 0.0, 1.0) if 3 ** n_tol <= MAX_COMBINATIONS else (-1.0, 1.0)
+_KINDS = ("thickness", "permittivity", "loss_tangent")
 
 
 @dataclass
 class WindowAnalysis:
-    """One window on its feed's line, evaluated over f ± tolerance × thickness combinations.
+    """One window on its feed's line over f ± tolerance and the spread of its layers.
 
-    ``thickness`` has shape (n_combo, n_layer); ``gamma`` and ``absorptance`` have shape
-    (n_combo, n_freq). Row ``nominal`` is the nominal stack. NaN where the line does not
-    propagate.
+    ``spreads`` holds each layer's material spread at the feed (ε_r, tan δ scaled to the
+    top of the band); ``box`` each layer's (low, nominal, high) of thickness, ε_r and tan δ.
+    ``gamma`` and ``absorptance`` are the nominal stack's |Γ| and absorbed fraction over
+    ``frequency``; ``reflection`` and ``absorption`` are the worst cases over the box
+    (NaN where the line does not propagate).
     """
 
     window: Window
@@ -90,43 +78,68 @@ class WindowAnalysis:
     line: Line
     embedding: Embedding
     materials: tuple[WindowMaterial, ...]
+    spreads: tuple[MaterialSpread, ...]
+    box: tuple[LayerSpread, ...]
     frequency: np.ndarray
-    thickness: np.ndarray
-    nominal: int
     gamma: np.ndarray
     absorptance: np.ndarray
+    reflection: SpreadWorst
+    absorption: SpreadWorst
     _bands: dict = field(default_factory=dict, repr=False)
 
-    # ---- stacks
+    # ---- the parameter box
 
-    def layers(self, row: int | None = None) -> list[Layer]:
-        """The stack at thickness row ``row`` (nominal if None)."""
-        t = self.thickness[self.nominal if row is None else row]
-        return [Layer(m.eps_r, m.tan_delta, float(d)) for m, d in zip(self.materials, t)]
+    @property
+    def nominal_point(self) -> StackPoint:
+        return StackPoint(*(tuple(getattr(b, k)[1] for b in self.box) for k in LayerSpread._fields))
 
-    def gamma_over(self, f: np.ndarray) -> np.ndarray:
-        """|Γ| at frequencies ``f`` (1-D) for every thickness row: shape (n_combo, len(f))."""
-        stack = [Layer(m.eps_r, m.tan_delta, self.thickness[:, i:i + 1])
-                 for i, m in enumerate(self.materials)]
-        f = np.asarray(f, dtype=float)
-        return np.abs(window_response(f[None, :], stack, self.embedding).gamma)
+    def varied(self) -> list[tuple[int, str]]:
+        """(layer index, parameter) of every parameter with a spread, in layer order."""
+        return [(i, name) for i, b in enumerate(self.box)
+                for name, (lo, _n, hi) in zip(_KINDS, b) if hi > lo]
+
+    def notes(self) -> tuple[list[str], list[str]]:
+        """(spreads included, spreads not declared or flagged), as phrases for messages."""
+        included, missing = [], []
+        multi = len(self.window.layers) > 1
+        for i, la in enumerate(self.window.layers):
+            where = f"layer {i + 1} " if multi else ""
+            if la.thickness_tolerance > 0:
+                included.append(f"{where}thickness ±{_mm(la.thickness_tolerance)}")
+            else:
+                missing.append(f"{where}thickness: no tolerance given, nominal "
+                               f"{_mm(la.thickness)} only")
+        seen = set()
+        for sp in self.spreads:
+            if sp.material.id in seen:
+                continue
+            seen.add(sp.material.id)
+            inc, mis = sp.notes()
+            included += inc
+            missing += mis
+        return included, missing
+
+    @property
+    def evaluations(self) -> int:
+        """Stack combinations evaluated so far (searches and bands), each over its frequencies."""
+        return (self.reflection.evaluations + self.absorption.evaluations
+                + sum(b.evaluations for b in self._bands.values()))
 
     # ---- worst points (NaN counts as worst: a band the line does not carry is never better)
 
-    def _worst(self, values: np.ndarray) -> tuple[float, float, tuple[float, ...]]:
-        key = np.where(np.isnan(values), np.inf, values)
-        i, j = np.unravel_index(int(np.argmax(key)), values.shape)
-        return float(values[i, j]), float(self.frequency[j]), tuple(map(float, self.thickness[i]))
-
     @property
     def worst_gamma(self) -> tuple[float, float, tuple[float, ...]]:
-        """(largest |Γ|, its frequency in Hz, the layer thicknesses in m)."""
-        return self._worst(self.gamma)
+        """(largest |Γ|, its frequency in Hz, the layer thicknesses in m); the full point,
+        with ε_r and tan δ, is ``reflection.point``."""
+        r = self.reflection
+        return r.value, r.frequency, r.point.thickness
 
     @property
     def worst_absorptance(self) -> tuple[float, float, tuple[float, ...]]:
-        """(largest absorbed fraction, its frequency in Hz, the layer thicknesses in m)."""
-        return self._worst(self.absorptance)
+        """(largest absorbed fraction, its frequency in Hz, the layer thicknesses in m); the
+        full point is ``absorption.point`` (every tan δ at the top of its range)."""
+        a = self.absorption
+        return a.value, a.frequency, a.point.thickness
 
     @property
     def centre(self) -> int:
@@ -134,38 +147,56 @@ class WindowAnalysis:
 
     @property
     def nominal_gamma(self) -> float:
-        return float(self.gamma[self.nominal, self.centre])
+        return float(self.gamma[self.centre])
 
     @property
     def nominal_absorptance(self) -> float:
-        return float(self.absorptance[self.nominal, self.centre])
+        return float(self.absorptance[self.centre])
+
+    # ---- stacks for the figure
+
+    def points(self) -> list[StackPoint]:
+        """The nominal stack first, then the worst combinations found (distinct)."""
+        out = [self.nominal_point]
+        cands = [self.reflection.point, self.absorption.point]
+        for b in self._bands.values():
+            cands += [p for p in (b.low_point, b.high_point) if p is not None]
+        for p in cands:
+            if p not in out:
+                out.append(p)
+        return out
+
+    def gamma_over(self, f: np.ndarray) -> np.ndarray:
+        """|Γ| at frequencies ``f`` (1-D) of each of :meth:`points` (row 0 nominal):
+        shape (n_points, len(f))."""
+        rows = np.array([np.array(p).T for p in self.points()])  # (k, n, 3)
+        g, _a = spread_response(np.asarray(f, dtype=float), rows, self.embedding)
+        return np.abs(g)
+
+    nominal = 0  # row of the nominal stack in gamma_over
 
     # ---- band
 
-    def band(self, limit: float) -> tuple[float, float, bool, bool]:
-        """Band around the feed frequency where |Γ| ≤ ``limit`` for every thickness row.
-
-        The contiguous band of the worst case is the intersection of each row's contiguous
-        band around the centre (physics.multilayer.reflection_band). Returns (low, high,
-        low_open, high_open); NaN edges when |Γ| exceeds the limit at the feed frequency.
-        An open edge reached the searched span (±BAND_SPAN of f): the true edge lies beyond.
-        """
+    def band_detail(self, limit: float) -> SpreadBand:
+        """Band around the feed frequency where |Γ| ≤ ``limit`` for the worst combinations
+        of the box (physics.window_spread.band_over_spread), cached per limit."""
         key = round(float(limit), 12)
         if key not in self._bands:
-            lo, hi, lo_open, hi_open = -math.inf, math.inf, False, False
-            for row in range(self.thickness.shape[0]):
-                b = reflection_band(self.layers(row), self.feed.frequency, limit, self.embedding,
-                                    span=BAND_SPAN, points=BAND_POINTS)
-                if math.isnan(b.low):
-                    lo = hi = math.nan
-                    lo_open = hi_open = False
-                    break
-                if b.low > lo or (b.low == lo and not b.low_open):
-                    lo, lo_open = b.low, b.low_open
-                if b.high < hi or (b.high == hi and not b.high_open):
-                    hi, hi_open = b.high, b.high_open
-            self._bands[key] = (lo, hi, lo_open, hi_open)
+            if math.isnan(self.reflection.value):
+                nan = math.nan
+                self._bands[key] = SpreadBand(nan, nan, False, False, None, None, 0, 0, True)
+            else:
+                self._bands[key] = band_over_spread(
+                    self.feed.frequency, limit, self.box, self.embedding, span=BAND_SPAN,
+                    points=BAND_POINTS, seeds=(self.reflection.point,))
         return self._bands[key]
+
+    def band(self, limit: float) -> tuple[float, float, bool, bool]:
+        """(low, high, low_open, high_open) of :meth:`band_detail`; NaN edges when |Γ|
+        exceeds the limit at the feed frequency for some combination. An open edge reached
+        the searched span (±BAND_SPAN of f): the true edge lies beyond."""
+        b = self.band_detail(limit)
+        return b.low, b.high, b.low_open, b.high_open
 
     # ---- thermal and thickness estimates
 
@@ -183,11 +214,11 @@ class WindowAnalysis:
         k = self.materials[0].thermal_conductivity
         if k is None:
             return None, f"no thermal conductivity for material {self.materials[0].id}"
-        t = (thickness or tuple(self.thickness[self.nominal]))[0]
+        t = (thickness or (self.window.layers[0].thickness,))[0]
         return float(disc_temperature_rise(absorbed, k, t)), ""
 
     def half_wave_thickness(self, layer: int = 0) -> float:
-        """λ_g/2 of the feed's mode inside layer ``layer`` at the feed frequency, m.
+        """λ_g/2 of the feed's mode inside layer ``layer`` at the feed frequency (nominal ε_r), m.
 
         The filled-guide cutoff is the empty guide's divided by √ε_r (0 for a plane wave):
         a single lossless slab between equal media reflects nothing at d = N λ_g/2.
@@ -197,26 +228,8 @@ class WindowAnalysis:
         return float(guide_wavelength(self.feed.frequency, cutoff, eps)) / 2.0
 
 
-def _layer_tolerances(window: Window) -> np.ndarray:
-    return np.array([la.thickness_tolerance for la in window.layers], dtype=float)
-
-
-def _thickness_rows(window: Window) -> tuple[np.ndarray, int]:
-    """Thickness combinations (n_combo, n_layer) over ±tolerance, and the nominal row."""
-    nominal = np.array([la.thickness for la in window.layers], dtype=float)
-    tol = _layer_tolerances(window)
-    varied = np.nonzero(tol > 0)[0]
-    levels = _levels(varied.size)
-    product = list(itertools.product(levels, repeat=varied.size))
-    combos = np.array(product, dtype=float).reshape(len(product), varied.size)
-    rows = np.repeat(nominal[None, :], combos.shape[0], axis=0)
-    rows[:, varied] += combos * tol[varied]
-    rows = np.maximum(rows, 0.0)
-    zero = np.all(combos == 0.0, axis=1)
-    if not zero.any():  # corners only: add the nominal stack as its own row
-        rows = np.vstack([rows, nominal])
-        return rows, rows.shape[0] - 1
-    return rows, int(np.nonzero(zero)[0][0])
+def _mm(t: float) -> str:
+    return f"{t * 1e3:.4g} mm"
 
 
 def _frequencies(feed: Feed) -> np.ndarray:
@@ -229,22 +242,33 @@ def _frequencies(feed: Feed) -> np.ndarray:
 
 
 def window_analysis(ctx, window: Window) -> WindowAnalysis:
-    """The response of ``window`` over its feed's band and thickness tolerance (cached on ctx)."""
+    """The worst cases of ``window`` over its feed's band and its layers' spreads (cached on ctx).
+
+    ValueError for an unknown material or more than MAX_LAYERS layers.
+    """
     key = ("window-analysis", window.id)
     if key not in ctx._cache:
         model = ctx.model
         feed = model.feed(window.feed)
         line = line_from_name(feed.line)
         emb = line_embedding(line)
+        if len(window.layers) > MAX_LAYERS:
+            raise ValueError(f"window {window.id} has {len(window.layers)} layers; the window "
+                             f"analysis evaluates at most {MAX_LAYERS}")
         materials = tuple(resolve_material(model, la.material) for la in window.layers)
         f = _frequencies(feed)
-        rows, nominal = _thickness_rows(window)
-        stack = [Layer(m.eps_r, m.tan_delta, rows[:, i:i + 1]) for i, m in enumerate(materials)]
-        resp = window_response(f[None, :], stack, emb)
-        gamma = np.abs(resp.gamma)
-        absorptance = np.broadcast_to(resp.absorptance, gamma.shape).copy()
-        ctx._cache[key] = WindowAnalysis(window, feed, line, emb, materials, f, rows, nominal,
-                                         gamma, absorptance)
+        # loss tangents at the top of the band, where the ∝ f rule makes them largest
+        f_top = float(f.max())
+        spreads = tuple(material_spread(m, f_top) for m in materials)
+        box = tuple(LayerSpread((la.thickness - la.thickness_tolerance, la.thickness,
+                                 la.thickness + la.thickness_tolerance), sp.eps_r, sp.tan_delta)
+                    for la, sp in zip(window.layers, spreads))
+        nominal = np.array([[[b.thickness[1], b.eps_r[1], b.tan_delta[1]] for b in box]])
+        g, a = spread_response(f, nominal, emb)
+        reflection = worst_over_spread(f, box, emb, quantity="reflection")
+        absorption = worst_over_spread(f, box, emb, quantity="absorption")
+        ctx._cache[key] = WindowAnalysis(window, feed, line, emb, materials, spreads, box, f,
+                                         np.abs(g[0]), a[0], reflection, absorption)
     return ctx._cache[key]
 
 
@@ -271,8 +295,16 @@ def _reflection_free(a: WindowAnalysis) -> dict:
     return {"value": [float(n * half) for n in (n0 - 1, n0, n0 + 1) if n >= 1], "unit": "m"}
 
 
+def _point_json(p: StackPoint) -> dict:
+    """A combination as JSON: each layer's thickness (m), ε_r and tan δ."""
+    return {"thickness": {"value": list(p.thickness), "unit": "m"},
+            "permittivity": {"value": list(p.eps_r), "unit": "1"},
+            "loss_tangent": {"value": list(p.tan_delta), "unit": "1"}}
+
+
 def window_characteristics(ctx) -> dict:
-    """Per-window numbers at the nominal frequency and thickness (and a few worst cases).
+    """Per-window numbers at the nominal frequency and stack, the worst cases over the
+    spreads with their points, and which spreads were included.
 
     Returns ``{window_id: {...}}`` with JSON-ready values ``{"value", "unit"}`` (``None``
     with a ``"reason"`` where a value is undefined; never NaN or infinity).
@@ -280,6 +312,7 @@ def window_characteristics(ctx) -> dict:
     out: dict = {}
     for window in ctx.model.windows:
         a = window_analysis(ctx, window)
+        included, missing = a.notes()
         no_wave = "the line does not propagate at the feed frequency"
         g = a.nominal_gamma
         worst_g, worst_gf, _ = a.worst_gamma
@@ -303,6 +336,11 @@ def window_characteristics(ctx) -> dict:
             "temperature_rise_estimate": _q(rise, "K", why),
             "reflection_free_thicknesses": _reflection_free(a),
             "total_thickness": _q(sum(la.thickness for la in window.layers), "m"),
+            "gamma_worst_point": _point_json(a.reflection.point),
+            "absorbed_fraction_worst_point": _point_json(a.absorption.point),
+            "spreads_included": included,
+            "spreads_not_declared": missing,
+            "combinations_evaluated": a.evaluations,
         }
         cautions = [c for m in a.materials for c in m.cautions]
         if cautions:

@@ -101,7 +101,7 @@ def test_standing_wave_of_a_quarter_wave_window_raises_the_peak_field(base_model
     s = (beta[1] / beta[0]) ** 2
     g = (s - 1) / (s + 1)
     d = math.pi / 2 / beta[1]
-    mat = Material("alumina-lossless", 9.8, 0.0, source="test material")
+    mat = Material("alumina-lossless", 9.8, 0.0, source="test material", permittivity_range=(9.8, 9.8))
     win = Window("w", "main", 0.0, (WindowLayer("alumina-lossless", d),))
     feed = make_feed("WR-340", f, power=p)
     (fd,) = evaluate(base_model, "line.breakdown", policy, feed, windows=[win], materials=[mat],

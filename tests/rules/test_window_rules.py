@@ -35,7 +35,9 @@ from rfcheck.spec import load_spec
 DEMO = Path(__file__).resolve().parents[2] / "examples" / "bench-ecr-reactor.toml"
 WR340_A = 86.36e-3  # m, EIA RS-261-B nominal inside width 3.400 in
 F0 = 2.45e9
-LOSSLESS_ALUMINA = Material("alumina-lossless", 9.8, 0.0, source="test material")
+# declared ranges of zero width: no spread, so the closed forms of a fixed slab apply
+LOSSLESS_ALUMINA = Material("alumina-lossless", 9.8, 0.0, source="test material",
+                            permittivity_range=(9.8, 9.8), loss_tangent_range=(0.0, 0.0))
 
 
 # ----------------------------------------------------------------------------- helpers
@@ -75,14 +77,21 @@ FC = C / (2 * WR340_A)
 
 # ----------------------------------------------------------------------------- window.reflection
 
-def test_half_wave_alumina_disc_in_wr340_is_reflection_free_and_passes(base_model, policy):
-    # λ_g/2 of TE10 in alumina-filled WR-340 at 2.45 GHz (Pozar §3.3): δ = π, |Γ| = 0
+def test_half_wave_alumina_disc_reflects_once_eps_moves_over_the_library_range(base_model, policy):
+    # λ_g/2 of TE10 in alumina-filled WR-340 at 2.45 GHz for the nominal ε 9.9 (Pozar §3.3):
+    # δ = π, |Γ| = 0; the library range 9.7–9.9 detunes it, worst at ε 9.7, where the
+    # single-slab closed form (Born & Wolf §1.6.4) gives the reflection
     d = math.pi / beta(9.9, F0, FC)
+    assert 19.5e-3 < d < 21e-3  # longer than the free-space λ/2 of 19.54 mm (reference-values §4)
     model = make_model(base_model, make_feed(), [WindowLayer("alumina-99.5", d)])
     (fd,) = evaluate(model, "window.reflection", policy)
     assert fd.status is Status.PASS
-    assert fd.measured.value < 2e-3  # only the 1e-4 loss tangent of the library alumina
-    assert 19.5e-3 < d < 21e-3  # longer than the free-space λ/2 of 19.54 mm (reference-values §4)
+    # tan δ (≤ 3e-4) changes |Γ| by < 1e-3 of itself here
+    assert fd.measured.value == pytest.approx(slab_gamma(9.7, d, F0, FC), rel=2e-3)
+    assert fd.worst_case["permittivity"].value == pytest.approx(9.7)
+    assert "alumina-99.5 ε_r 9.7–9.9 (library range)" in fd.message
+    # the nominal stack is matched: only the loss reflects (< 2e-3)
+    assert "nominal |Γ| 0.00" in fd.message
 
 
 def test_worst_reflection_over_tolerances_matches_slab_closed_form(base_model, policy):
@@ -185,12 +194,22 @@ def test_absorbed_power_of_resonant_diamond_window(base_model, policy, rating, s
     d = 3 * C / f / (2 * math.sqrt(5.67))
     assert d == pytest.approx(1.111e-3, rel=1e-3)
     feed = make_feed("free-space", f=f, power=1e6, duty=0.5)
-    model = make_model(base_model, feed, [WindowLayer("cvd-diamond", d)], rating=rating,
-                       diameter=0.1)
+    # the measured disc (spec material, ranges of zero width) against the rule of thumb
+    disc = Material("diamond-disc", 5.67, 2e-5, 170e9, "test material", "", (), 1800.0,
+                    (5.67, 5.67), (2e-5, 2e-5))
+    model = make_model(base_model, feed, [WindowLayer("diamond-disc", d)], rating=rating,
+                       diameter=0.1, materials=[disc])
     (fd,) = evaluate(model, "window.absorbed-power", policy)
     a_thumb = math.pi * (1 + 5.67) * 2e-5 * d * f / C
     assert fd.measured.value == pytest.approx(0.5e6 * a_thumb, rel=1e-3)
     assert fd.status is status
+    assert fd.worst_case == {}  # nothing varies: no frequency tolerance, no spread
+    # the library grade's ε_r range 5.67–5.70 adds loss: (1 + ε') grows, worst at the top
+    lib = make_model(base_model, feed, [WindowLayer("cvd-diamond", d)], rating=rating)
+    (fl,) = evaluate(lib, "window.absorbed-power", policy)
+    assert fl.measured.value > fd.measured.value
+    assert fl.worst_case["permittivity"].value == pytest.approx(5.70)
+    assert fl.measured.value == pytest.approx(0.5e6 * a_thumb * 6.70 / 6.67, rel=3e-3)
     # edge-cooled disc: ΔT = P / (4π k t), k = 1800 W/(m K) library (Carslaw & Jaeger)
     rise = fd.measured.value / (4 * math.pi * 1800.0 * d)
     assert f"{rise:.3g} K" in fd.message and "estimate" in fd.message
@@ -249,7 +268,8 @@ def test_example_window_12mm_fails_and_half_wave_passes(demo_text, write_spec, p
     loaded = load_spec(write_spec(demo_text))
     (fd,) = evaluate(loaded.model, "window.reflection", policy)
     assert fd.status is Status.FAIL
-    worst = max(slab_gamma(3.8, 12e-3 + s * 0.2e-3, F0 + sf * 25e6, FC)
+    # library ε_r range 3.78–3.82 enters the worst case (Born & Wolf §1.6.4 over its ends)
+    worst = max(slab_gamma(e, 12e-3 + s * 0.2e-3, F0 + sf * 25e6, FC) for e in (3.78, 3.8, 3.82)
                 for s in (-1, 0, 1) for sf in (-1, 0, 1))
     assert fd.measured.value == pytest.approx(worst, rel=1e-3)  # tan δ 1e-4 ignored
     d = math.pi / beta(3.8, F0, FC)  # λ_g/2 in silica-filled WR-340 (Pozar §3.3)
@@ -302,3 +322,107 @@ def test_window_figure_is_an_svg_and_absent_without_windows(base_model):
     bare = make_model(base_model, make_feed())
     assert window_figure(SimpleNamespace(context=Context(bare, Envelope.of(bare)), model=bare,
                                          rules=rules)) is None
+
+
+# ----------------------------------------------------------------------------- material spreads
+
+def test_spec_material_without_ranges_gets_the_stated_default_spread(base_model, policy):
+    # a half-wave lossless disc of a spec material that declares no range: the library's
+    # default ±2 % on ε_r is assumed (worst case where the user has not said) and named
+    bare = Material("my-ceramic", 9.8, 1e-4, 2.45e9, "test material")
+    d = math.pi / beta(9.8, F0, FC)
+    model = make_model(base_model, make_feed(), [WindowLayer("my-ceramic", d)],
+                       materials=[bare])
+    (fd,) = evaluate(model, "window.reflection", policy)
+    assert "my-ceramic: no ε_r spread declared, ±2% assumed" in fd.message
+    assert "my-ceramic: no tan δ range declared, up to 5× the stated value assumed" in fd.message
+    assert "thickness: no tolerance given" in fd.message
+    # worst at an end of 9.8 × (1 ± 0.02): the single-slab closed form there (Born & Wolf §1.6.4)
+    expected = max(slab_gamma(e, d, F0, FC) for e in (9.8 * 0.98, 9.8 * 1.02))
+    assert fd.measured.value == pytest.approx(expected, rel=2e-3)  # tan δ ≤ 5e-4 ignored
+    assert fd.worst_case["permittivity"].value in (pytest.approx(9.604), pytest.approx(9.996))
+    assert set(fd.worst_case) == {"permittivity", "loss_tangent"}
+
+
+def test_worst_case_names_frequency_and_every_varied_parameter_of_each_layer(base_model, policy):
+    layers = [WindowLayer("alumina-99.5", 5e-3, 0.1e-3), WindowLayer("fused-silica", 8e-3),
+              WindowLayer("alumina-99.5", 5e-3, 0.1e-3)]
+    model = make_model(base_model, make_feed(tol=25e6), layers, rating=50.0)
+    for rid in ("window.reflection", "window.absorbed-power"):
+        (fd,) = evaluate(model, rid, policy)
+        assert set(fd.worst_case) == {"frequency", "thickness_1", "thickness_3"} | {
+            f"{k}_{i}" for k in ("permittivity", "loss_tangent") for i in (1, 2, 3)}
+        assert "layer 2 (fused-silica) 8 mm" in fd.message
+        assert "alumina-99.5 ε_r 9.7–9.9 (library range)" in fd.message
+        assert "layer 2 thickness: no tolerance given" in fd.message
+    (fa,) = evaluate(model, "window.absorbed-power", policy)
+    # absorption: every loss tangent at the top of its library range (alumina 3e-4, silica 5e-4)
+    assert fa.worst_case["loss_tangent_1"].value == pytest.approx(3e-4)
+    assert fa.worst_case["loss_tangent_2"].value == pytest.approx(5e-4)
+
+
+@pytest.mark.parametrize("quoted, factor, phrase", [
+    pytest.param(1e9, 2.475, "scaled ∝ f to 2.475 GHz (×2.48: 0.000495–0.000495)", id="quoted at 1 GHz: ×f/f_q"),
+    pytest.param(10e9, 1.0, "not scaled down to 2.475 GHz", id="quoted at 10 GHz: never down"),
+    pytest.param(None, 1.0, "tan δ has no quoted frequency", id="no frequency: flagged"),
+])
+def test_loss_tangent_quoted_elsewhere_is_scaled_up_or_flagged(base_model, policy, quoted, factor,
+                                                               phrase):
+    # rule (rfcheck.physics.multilayer.loss_tangent_scale): tan δ × max(1, f/f_quoted) at the
+    # top of the band, 2.475 GHz. To first order the absorbed fraction is ∝ tan δ (the
+    # stored-energy form in window.absorbed-power), so the power scales by the same factor.
+    def absorbed(frequency):
+        mat = Material("disc", 3.8, 2e-4, frequency, "test material", "", (), None,
+                       (3.8, 3.8), (2e-4, 2e-4))
+        d = math.pi / beta(3.8, F0, FC)
+        model = make_model(base_model, make_feed(tol=25e6), [WindowLayer("disc", d)],
+                           materials=[mat], rating=100.0)
+        (fd,) = evaluate(model, "window.absorbed-power", policy)
+        return fd
+
+    fd = absorbed(quoted)
+    reference = absorbed(2.475e9)  # quoted at the top of the band: used as stated
+    assert phrase in fd.message
+    # second order in the losses: 1e-3 of the power at ×2.5
+    assert fd.measured.value == pytest.approx(factor * reference.measured.value, rel=2e-3)
+
+
+def test_band_uses_the_material_spread(base_model, policy):
+    # six half waves of alumina (narrow band, Born & Wolf §1.6.4) with ε_r 9.75–9.85: the
+    # band is the intersection of the closed-form bands at the ends of the range
+    d = 6 * math.pi / beta(9.8, F0, FC)
+    spread = dataclasses.replace(LOSSLESS_ALUMINA, permittivity_range=(9.75, 9.85))
+    fixed = make_model(base_model, make_feed(tol=25e6), [WindowLayer("alumina-lossless", d)],
+                       materials=[LOSSLESS_ALUMINA])
+    varied = dataclasses.replace(fixed, materials=(spread,))
+    (fb,) = evaluate(fixed, "window.band", policy)
+    (vb,) = evaluate(varied, "window.band", policy)
+    lo, hi = vb.worst_case["band_low"].value, vb.worst_case["band_high"].value
+    assert lo > fb.worst_case["band_low"].value and hi < fb.worst_case["band_high"].value
+    # at each edge the binding end of the range sits exactly on the limit, the other under it
+    at_lo = [slab_gamma(e, d, lo, FC) for e in (9.75, 9.85)]
+    at_hi = [slab_gamma(e, d, hi, FC) for e in (9.75, 9.85)]
+    assert max(at_lo) == pytest.approx(0.2, abs=1e-6) and max(at_hi) == pytest.approx(0.2, abs=1e-6)
+    assert vb.worst_case["permittivity"].value in (9.75, 9.85)
+    assert "alumina-lossless ε_r 9.75–9.85 (spec range)" in vb.message
+
+
+def test_twenty_layer_window_analysis_is_bounded(base_model, policy):
+    # 20 toleranced layers (60 varied parameters): the old analysis was exponential in the
+    # layers; this one evaluates at most ANALYSIS_COMBINATIONS stacks (assert the count)
+    import time
+
+    from rfcheck.rules.window_data import ANALYSIS_COMBINATIONS
+
+    layers = [WindowLayer("fused-silica" if i % 2 else "ptfe", 1.6e-3, 0.02e-3) for i in range(20)]
+    model = make_model(base_model, make_feed(tol=25e6), layers, rating=50.0)
+    ctx = Context(model, Envelope.of(model))
+    t0 = time.perf_counter()
+    findings = [f for rid in ("window.reflection", "window.absorbed-power", "window.band")
+                for f in evaluate(model, rid, policy, ctx=ctx)]
+    elapsed = time.perf_counter() - t0
+    a = window_analysis(ctx, model.windows[0])
+    assert len(a.varied()) == 60
+    assert 120 < a.evaluations <= ANALYSIS_COMBINATIONS
+    assert all(f.status is not Status.ERROR for f in findings)
+    print(f"20-layer window, three rules: {elapsed:.2f} s, {a.evaluations} combinations")
