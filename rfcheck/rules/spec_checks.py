@@ -165,8 +165,9 @@ def assumptions(ctx: Context) -> Iterator[Finding]:
     """What it checks
     Whether the specification declares, for each feed: the launched polarisation (and the
     E direction of a linear launch across or oblique to B), the far end of its launch path,
-    the cold cavity's reflection and the ignition time; and for each window layer whether
-    its material declares the spread of its permittivity and loss tangent. Each item left
+    the cold cavity's reflection and the ignition time; and for each window material on the
+    feed whether the library or the spec gives the spread of its permittivity and loss
+    tangent and the frequency its loss tangent is quoted at. Each item left
     open is named with the worst case the rules take for it.
 
     Why it matters
@@ -209,10 +210,38 @@ def assumptions(ctx: Context) -> Iterator[Finding]:
             open_items.append("cold_cavity (taken as |Γ| = 1)")
         if feed.ignition_time is None:
             open_items.append("ignition_time (taken as continuous)")
+        open_items += _material_assumptions(ctx, feed)
         if open_items:
             msg = (f"{len(open_items)} input{'s' if len(open_items) > 1 else ''} left open, each "
                    f"taken at its worst case: {'; '.join(open_items)}")
         else:
-            msg = "the polarisation, far end, cold cavity and ignition time are declared"
+            msg = ("the polarisation, far end, cold cavity, ignition time and the window "
+                   "materials' spreads are declared")
         yield ctx.finding(subject, requirement, passed=not open_items, message=msg,
                           details={"undeclared": open_items})
+
+
+def _material_assumptions(ctx: Context, feed) -> list[str]:
+    """Window materials on this feed whose spread or quoted frequency is not declared."""
+    from .window_material import default_spread, resolve_material
+
+    d = default_spread()
+    out, seen = [], set()
+    for w in ctx.model.windows:
+        if w.feed != feed.id:
+            continue
+        for layer in w.layers:
+            if layer.material in seen:
+                continue
+            seen.add(layer.material)
+            m = resolve_material(ctx.model, layer.material)
+            if m.eps_r_range is None:
+                out.append(f"the permittivity spread of {m.id} (taken as ±"
+                           f"{100 * float(d['eps_r_relative']):.3g} %)")
+            if m.tan_delta_range is None:
+                out.append(f"the loss-tangent spread of {m.id} (taken up to "
+                           f"{float(d['tan_delta_factor']):.3g}× the nominal)")
+            if m.frequency is None:
+                out.append(f"the frequency at which the loss tangent of {m.id} is quoted "
+                           "(used unscaled and flagged)")
+    return out
