@@ -53,6 +53,10 @@ class FieldUndefinedError(ValueError):
     """The field is NaN inside the chamber (measured data do not cover it)."""
 
 
+#: points per free coordinate of each zoom level (odd: the best point is kept)
+ZOOM_POINTS = 5
+
+
 @dataclass(frozen=True)
 class GeometryGrid:
     """Sampling of the chamber; searches refine from these grids by nested zooming."""
@@ -191,7 +195,7 @@ def _zoom(model, scales, start, step, lower, upper, periodic, levels, maximise=F
     if field is None:
         field = lambda p: model.field_per_scale(p, scales)  # noqa: E731
     free = np.nonzero(step > 0)[0]
-    axes = np.meshgrid(*([np.linspace(-1.0, 1.0, 5)] * len(free)), indexing="ij")
+    axes = np.meshgrid(*([np.linspace(-1.0, 1.0, ZOOM_POINTS)] * len(free)), indexing="ij")
     unit = np.zeros((axes[0].size if len(free) else 1, 3))
     for k, i in enumerate(free):
         unit[:, i] = axes[k].ravel()
