@@ -7,8 +7,11 @@ Points are given in cylindrical coordinates (r, phi, z).
 Conventions
 -----------
 * On-axis profile: signed B_z and |B| on a dense grid of the chamber length; crossings,
-  gradients and axial extrema are taken from a cubic spline of B_z through it (roots by
-  scipy.optimize.brentq, extrema by bounded scalar minimisation), not from grid nodes.
+  gradients and axial extrema start from the grid and are refined on the field itself
+  (the model's B_z on the axis, evaluated at the refined points): roots by safeguarded
+  secant steps inside the bracketing grid cell, gradients by a central difference, extrema
+  by successive parabolic steps inside the cell pair around the extreme node — not from
+  grid nodes, and without an interpolant of the samples (nor the import of one).
 * Injection side is the z_start side, extraction side the z_end side. B_inj (B_ext) is the
   largest on-axis |B| between z_start (z_end) and the on-axis minimum, inside the chamber.
 * B_min is the smallest |B| in the plasma volume r <= R, z_start <= z <= z_end (a grid
@@ -31,11 +34,10 @@ Conventions
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from collections.abc import Callable
+from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.interpolate import CubicSpline
-from scipy.optimize import brentq, minimize_scalar
 
 from rfcheck.model import Chamber
 from rfcheck.physics.constants import TWO_PI
@@ -91,9 +93,28 @@ class AxisProfile:
     b_z: np.ndarray
     b: np.ndarray
     scale: float
+    #: B_z on the axis at any z (the field model's, at this scale); None: a cubic Hermite
+    #: interpolant of the samples stands in for it
+    exact: Callable[[np.ndarray], np.ndarray] | None = field(default=None, compare=False,
+                                                             repr=False)
 
-    def spline(self) -> CubicSpline:
-        return CubicSpline(self.z, self.b_z)
+    def b_z_at(self, zq) -> np.ndarray:
+        """Signed B_z (T) at axial positions zq (m)."""
+        zq = np.asarray(zq, dtype=float)
+        if self.exact is not None:
+            return np.asarray(self.exact(zq), dtype=float)
+        return _hermite(self.z, self.b_z, zq)
+
+
+def _hermite(z, v, zq):
+    """Cubic Hermite interpolation of samples v(z) with centred finite-difference slopes."""
+    d = np.gradient(v, z)
+    i = np.clip(np.searchsorted(z, zq) - 1, 0, len(z) - 2)
+    h = z[i + 1] - z[i]
+    t = (zq - z[i]) / h
+    t2, t3 = t * t, t * t * t
+    return ((2 * t3 - 3 * t2 + 1) * v[i] + (t3 - 2 * t2 + t) * h * d[i]
+            + (-2 * t3 + 3 * t2) * v[i + 1] + (t3 - t2) * h * d[i + 1])
 
 
 @dataclass(frozen=True)
@@ -230,10 +251,15 @@ def axis_profiles(model, chamber: Chamber, scales, grid: GeometryGrid | None = N
     s = _scales(scales)
     z = np.linspace(chamber.z_start, chamber.z_end, grid.axis_points)
     points = _cartesian(0.0, 0.0, z)
-    field = model.field(points, s)
-    _defined(field, "axis")
-    return tuple(AxisProfile(z, field[i, :, 2].copy(), np.linalg.norm(field[i], axis=-1),
-                             float(s[i])) for i in range(len(s)))
+    b_field = model.field(points, s)
+    _defined(b_field, "axis")
+
+    def exact(scale):
+        return lambda zq: model.axis_field(np.asarray(zq, dtype=float), float(scale),
+                                           cache=False)
+
+    return tuple(AxisProfile(z, b_field[i, :, 2].copy(), np.linalg.norm(b_field[i], axis=-1),
+                             float(s[i]), exact(s[i])) for i in range(len(s)))
 
 
 def axis_profile(model, chamber: Chamber, scale: float = 1.0,
@@ -242,52 +268,105 @@ def axis_profile(model, chamber: Chamber, scale: float = 1.0,
     return axis_profiles(model, chamber, [scale], grid)[0]
 
 
-def _extremum(spline, z, b, lo, hi, maximise) -> FieldPoint:
-    """Extremum of |B_z| from the spline within [lo, hi] (grid start, bounded refinement)."""
+#: iterations of the refinements on the field (each converges superlinearly from a grid
+#: cell; the counts bound the work and are far above what the examples need)
+SECANT_STEPS = 8
+PARABOLA_STEPS = 12
+
+
+def _extremum(profile: AxisProfile, lo, hi, maximise) -> FieldPoint:
+    """Extremum of |B_z| within [lo, hi]: the extreme grid node, then successive parabolic
+    steps on the field inside its neighbouring cells (kept when they improve on the node)."""
+    z, b = profile.z, np.abs(profile.b_z)
     inside = (z >= lo) & (z <= hi)
     idx = np.nonzero(inside)[0]
     pick = idx[np.argmax(b[idx]) if maximise else np.argmin(b[idx])]
     sign = -1.0 if maximise else 1.0
     a, c = z[max(pick - 1, idx[0])], z[min(pick + 1, idx[-1])]
-    best_z, best_b = z[pick], b[pick]
+    best_z, best_b = float(z[pick]), float(b[pick])
     if c > a:
-        res = minimize_scalar(lambda t: sign * abs(float(spline(t))), bounds=(a, c),
-                              method="bounded", options={"xatol": 1e-9})
-        if sign * abs(float(spline(res.x))) < sign * best_b:
-            best_z, best_b = float(res.x), abs(float(spline(res.x)))
+        def f(t):
+            return sign * np.abs(profile.b_z_at(np.atleast_1d(t)))
+        x = np.array([a, best_z, c], dtype=float)
+        fx = f(x)
+        for _ in range(PARABOLA_STEPS):
+            (x0, x1, x2), (f0, f1, f2) = x, fx
+            den = (x1 - x0) * (f1 - f2) - (x1 - x2) * (f1 - f0)
+            if den == 0 or not np.isfinite(den):
+                break
+            v = x1 - 0.5 * ((x1 - x0) ** 2 * (f1 - f2) - (x1 - x2) ** 2 * (f1 - f0)) / den
+            if not (x0 < v < x2) or abs(v - x1) <= 1e-12 * (abs(x1) + (c - a)):
+                break
+            fv = float(f(v)[0])
+            # keep the three points bracketing the smallest value
+            pts = sorted(zip(np.append(x, v), np.append(fx, fv)))
+            k = int(np.argmin([q[1] for q in pts]))
+            k = min(max(k, 1), 2)
+            x = np.array([q[0] for q in pts[k - 1:k + 2]])
+            fx = np.array([q[1] for q in pts[k - 1:k + 2]])
+        j = int(np.argmin(fx))
+        if fx[j] < sign * best_b:
+            best_z, best_b = float(x[j]), float(abs(fx[j]))
     return FieldPoint(float(best_b), 0.0, 0.0, float(best_z), "axis")
 
 
 def axial_extrema(profile: AxisProfile) -> tuple[FieldPoint, FieldPoint, FieldPoint]:
     """(on-axis minimum, injection-side maximum, extraction-side maximum) of |B|."""
-    spline = profile.spline()
-    z, b = profile.z, np.abs(profile.b_z)
-    low = _extremum(spline, z, b, z[0], z[-1], maximise=False)
-    inj = _extremum(spline, z, b, z[0], low.z, maximise=True)
-    ext = _extremum(spline, z, b, low.z, z[-1], maximise=True)
+    z = profile.z
+    low = _extremum(profile, z[0], z[-1], maximise=False)
+    inj = _extremum(profile, z[0], low.z, maximise=True)
+    ext = _extremum(profile, low.z, z[-1], maximise=True)
     return low, inj, ext
+
+
+def _roots(profile: AxisProfile, target: float, lo: np.ndarray, hi: np.ndarray,
+           f_lo: np.ndarray, f_hi: np.ndarray) -> np.ndarray:
+    """Roots of B_z − target in the cells [lo, hi] (sign change), all cells at once:
+    safeguarded secant (regula falsi with the Illinois weighting) on the field."""
+    a, b, fa, fb = lo.copy(), hi.copy(), f_lo.copy(), f_hi.copy()
+    x = b - fb * (b - a) / (fb - fa)
+    side = np.zeros(a.shape)
+    for _ in range(SECANT_STEPS):
+        fx = profile.b_z_at(x) - target
+        left = np.sign(fx) == np.sign(fa)
+        done = (fx == 0) | (np.abs(b - a) <= 4 * np.finfo(float).eps * np.abs(x))
+        a, fa = np.where(left, x, a), np.where(left, fx, fa)
+        b, fb = np.where(left, b, x), np.where(left, fb, fx)
+        # Illinois: halve the value kept twice in a row on the same side
+        fb = np.where(left & (side > 0), 0.5 * fb, fb)
+        fa = np.where(~left & (side < 0), 0.5 * fa, fa)
+        side = np.where(left, 1.0, -1.0)
+        x_new = b - fb * (b - a) / (fb - fa)
+        x = np.where(done, x, np.clip(x_new, np.minimum(a, b), np.maximum(a, b)))
+        if done.all():
+            break
+    return x
 
 
 def resonance_crossings(profile: AxisProfile, b_res: float,
                         relative_tolerance: float = 0.0) -> tuple[Crossing, ...]:
     """Where |B| = b_res on the axis, with d|B|/dz and the zone width there.
 
-    Roots of B_z(z) = +b_res and B_z(z) = -b_res on the cubic spline of the profile,
-    bracketed by the profile nodes and found with brentq. Zone half-width
-    b_res * relative_tolerance / |d|B|/dz| (infinite where the gradient vanishes).
+    Roots of B_z(z) = +b_res and B_z(z) = -b_res on the field itself, bracketed by the
+    profile nodes (:func:`_roots`); d|B|/dz by a central difference of the field at each
+    root (step 1e-6 of the chamber length). Zone half-width b_res * relative_tolerance /
+    |d|B|/dz| (infinite where the gradient vanishes).
     """
-    spline = profile.spline()
-    slope = spline.derivative()
     z = profile.z
+    h = 1e-6 * (z[-1] - z[0])
     found = []
     for target in (b_res, -b_res):
         f = profile.b_z - target
         exact = np.nonzero(f == 0.0)[0]
-        brackets = np.nonzero(f[:-1] * f[1:] < 0)[0]
-        roots = [z[i] for i in exact] + [
-            brentq(lambda t: float(spline(t)) - target, z[i], z[i + 1], xtol=1e-12,
-                   rtol=4 * np.finfo(float).eps) for i in brackets]
-        found += [(root, np.sign(target) * float(slope(root))) for root in roots]
+        br = np.nonzero(f[:-1] * f[1:] < 0)[0]
+        roots = list(z[exact])
+        if br.size:
+            roots += list(_roots(profile, target, z[br], z[br + 1], f[br], f[br + 1]))
+        if roots:
+            r = np.asarray(roots, dtype=float)
+            fd = profile.b_z_at(np.concatenate([r + h, r - h]))
+            grads = (fd[:r.size] - fd[r.size:]) / (2 * h)
+            found += [(float(root), float(np.sign(target) * g)) for root, g in zip(r, grads)]
     crossings = []
     for root, grad in sorted(found):
         half = b_res * relative_tolerance / abs(grad) if grad != 0 else np.inf
