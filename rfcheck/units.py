@@ -105,7 +105,13 @@ def registry():
     """The one pint registry (created on first use: it costs a few hundred ms)."""
     import pint
 
-    ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, cache_folder=None)
+    # pint caches its parsed default definitions on disk (":auto:", the user's cache folder):
+    # building the registry then takes ~0.04 s instead of ~0.45 s. Where that folder cannot be
+    # used, the registry is built without it (same units, same results).
+    try:
+        ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, cache_folder=":auto:")
+    except (OSError, ValueError, EOFError, ImportError):
+        ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True, cache_folder=None)
     # SI-equivalent gauss, as engineers use it for magnet fields (1 G = 1e-4 T).
     ureg.define("field_gauss = 1e-4 * tesla = G")
     ureg.define("field_kilogauss = 1e-1 * tesla = kG")
