@@ -192,8 +192,10 @@ def aperture_attenuation(ctx: Context, *, min_margin: float,
     d = exp.occupied_distance
     for p in apertures:
         fc = path_cutoff(p)
-        cell = (f"{p.count} × {'⌀' + _mm(p.diameter) if p.shape == 'circular' else _mm(p.width) + ' × ' + _mm(p.height)}"
-                f" cells, {_mm(p.depth)} deep")
+        shape = ("⌀" + _mm(p.diameter) if p.shape == "circular"
+                 else f"{_mm(p.width)} × {_mm(p.height)}")
+        cell = (f"{p.count} × {shape} cells, {_mm(p.depth)} deep" if p.count > 1
+                else f"one {shape} tube, {_mm(p.depth)} deep")
         for feed in ctx.model.feeds:
             if p.feeds and feed.id not in p.feeds:
                 continue
@@ -202,10 +204,11 @@ def aperture_attenuation(ctx: Context, *, min_margin: float,
             requirement = f"A(f) ≥ A_need(f) + {margin_db:.3g} dB over {format_si(freqs[0], 'Hz')}–{format_si(freqs[-1], 'Hz')}"
             if freqs[-1] >= fc:
                 yield ctx.finding(subject, requirement, passed=False,
-                                  message=f"the {cell} propagate at {format_si(freqs[-1], 'Hz')}: "
-                                          f"their cutoff is {format_si(fc, 'Hz')}; make the cells "
-                                          f"smaller than {_mm(p.diameter or p.width)} × "
-                                          f"{format_si(fc, 'Hz')}/{format_si(freqs[-1], 'Hz')}",
+                                  message=f"{cell}: the cells propagate at "
+                                          f"{format_si(freqs[-1], 'Hz')}, above their cutoff "
+                                          f"{format_si(fc, 'Hz')}; below-cutoff attenuation needs "
+                                          "cells whose lowest-mode cutoff lies well above the "
+                                          "feed frequency",
                                   measured=Quantity(float(freqs[-1]), "Hz"),
                                   limit=Quantity(fc, "Hz"),
                                   margin=Quantity(fc - float(freqs[-1]), "Hz"))
@@ -222,9 +225,10 @@ def aperture_attenuation(ctx: Context, *, min_margin: float,
             slack = att - need - margin_db
             k = int(np.argmin(slack))
             r_ff = float(np.max(far_field_distance(p.size, freqs)))
-            msg = (f"{cell}: cutoff {format_si(fc, 'Hz')}; attenuation {att[k]:.3g} dB "
-                   f"({att[k] + 10 * math.log10(p.count):.3g} dB per tube, −{10 * math.log10(p.count):.3g} dB "
-                   f"for {p.count} cells) at {format_si(float(freqs[k]), 'Hz')} against "
+            array = (f" ({att[k] + 10 * math.log10(p.count):.3g} dB per tube, "
+                     f"−{10 * math.log10(p.count):.3g} dB for {p.count} cells)" if p.count > 1 else "")
+            msg = (f"{cell}: cutoff {format_si(fc, 'Hz')}; attenuation {att[k]:.3g} dB{array} "
+                   f"at {format_si(float(freqs[k]), 'Hz')} against "
                    f"{need[k]:.3g} dB needed for {format_si(feed.average_power, 'W')} average "
                    f"to fall to {format_si(float(levels[k]), 'W/m^2')} at {d:g} m")
             if margin_db:
