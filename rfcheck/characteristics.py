@@ -70,4 +70,9 @@ def characteristics(ctx: Context) -> dict:
     from rfcheck.rules.path_data import path_characteristics
 
     out["paths"] = path_characteristics(ctx)
+    from rfcheck.physics.exposure import SMALL_LEAK_DIRECTIVITY
+    from rfcheck.rules.exposure_data import exposure_characteristics
+
+    directivity = ctx.option("exposure.leak-level", "leak_directivity")
+    out["exposure"] = exposure_characteristics(ctx, directivity or SMALL_LEAK_DIRECTIVITY)
     return out

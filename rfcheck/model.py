@@ -330,16 +330,106 @@ class Window:
 
 
 @dataclass(frozen=True)
+class LevelSegment:
+    """One law of a reference-level table: value = coefficient * (f / frequency_unit) **
+    exponent on (f_min, f_max] Hz (frequency_unit in Hz: 1e6 for laws in MHz). `quantity` is
+    "S" (W/m², plane-wave-equivalent power density), "E" (V/m rms) or "H" (A/m rms)."""
+
+    f_min: float
+    f_max: float
+    quantity: Literal["S", "E", "H"]
+    coefficient: float
+    exponent: float
+    frequency_unit: float = 1e6
+
+
+@dataclass(frozen=True)
+class ReferenceTable:
+    """A table of RF-exposure reference levels (shipped, or a site file next to the spec).
+
+    `scope` is "whole-body" or "local"; `origin` is "shipped" or the site file's name, with
+    its SHA-256 in `sha256` (empty for shipped tables)."""
+
+    id: str
+    title: str
+    standard: str
+    edition: str
+    population: str
+    scope: str
+    averaging_time: str
+    confidence: str
+    segments: tuple[LevelSegment, ...]
+    origin: str = "shipped"
+    sha256: str = ""
+
+
+@dataclass(frozen=True)
+class SurveyReading:
+    """A leak reading: `power_density` (W/m²) at `distance` (m) from the leaking spot.
+
+    `feed`: the feed it was read for (None: a broadband reading of all feeds together);
+    `forward_power`: the forward average power (W) during the survey (None: not declared);
+    `size`: largest dimension (m) of the leaking spot (None: not declared, taken as small)."""
+
+    power_density: float
+    distance: float
+    feed: str | None = None
+    forward_power: float | None = None
+    size: float | None = None
+
+
+@dataclass(frozen=True)
+class LeakPath:
+    """A declared way out for RF power.
+
+    kind "seam": a flange, choke, door or lid joint with its leakage `attenuation_db` below
+    the forward power (shielding effectiveness). kind "aperture": `count` identical tubes
+    below cutoff (vent honeycomb, viewport tube or perforated plate), `shape` circular
+    (`diameter`) or rectangular (`width` ≥ `height`), `depth` long. `size` is the largest
+    dimension of the leaking area (m). `feeds` empty: every feed's power reaches it."""
+
+    id: str
+    kind: Literal["seam", "aperture"]
+    size: float
+    feeds: tuple[str, ...] = ()
+    attenuation_db: float | None = None
+    shape: Literal["circular", "rectangular"] | None = None
+    diameter: float | None = None
+    width: float | None = None
+    height: float | None = None
+    depth: float | None = None
+    count: int = 1
+
+
+@dataclass(frozen=True)
 class Leak:
-    power_density: float  # W/m^2 measured or assumed at `distance`
-    distance: float  # m
+    """How the leak is known: "survey" (readings) or "derived" (forward power and paths)."""
+
+    model: Literal["survey", "derived"]
+    readings: tuple[SurveyReading, ...] = ()
+    paths: tuple[LeakPath, ...] = ()
+
+
+@dataclass(frozen=True)
+class ControlledArea:
+    """The controlled-area boundary as a cylinder about the source axis, in the spec's
+    coordinates: z_start ≤ z ≤ z_end, r ≤ radius (m)."""
+
+    z_start: float
+    z_end: float
+    radius: float
 
 
 @dataclass(frozen=True)
 class Exposure:
-    table: str  # reference-level table id
+    """People near the source. `cryogenic_magnet`: None when not declared (inferred from
+    the coils' winding current density where the cautions need it)."""
+
+    table: ReferenceTable
     leak: Leak | None
-    occupied_distance: float  # m
+    occupied_distance: float  # m from the leaking spot
+    controlled_area: ControlledArea | None = None
+    cryogenic_magnet: bool | None = None
 
 
 @dataclass(frozen=True)

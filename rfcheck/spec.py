@@ -324,15 +324,73 @@ class WindowSpec(_Strict):
     diameter: PosLength | None = None
 
 
+class SurveyReadingSpec(_Strict):
+    feed: str | None = Field(None, description="the feed read; not declared: a broadband "
+                                               "reading of all feeds together")
+    power_density: PowerDensity = Field(description='reading, e.g. "1 mW/cm^2"')
+    at: PosLength = Field(description="distance of the probe from the leaking spot")
+    forward_power: Power | None = Field(
+        None, description="forward average power during the survey (scales the reading with "
+                          "the operating power); not declared: taken as the operating power")
+    size: PosLength | None = Field(
+        None, description="largest dimension of the leaking spot (sets its far-field "
+                          "distance); not declared: a small leak")
+
+
+class LeakPathSpec(_Strict):
+    id: Id
+    kind: Literal["seam", "aperture"] = Field(
+        description='"seam" (flange, choke, door or lid joint with a declared attenuation) or '
+                    '"aperture" (tubes below cutoff: vent honeycomb, viewport tube, perforated '
+                    'plate)')
+    feeds: list[str] = Field(default_factory=list,
+                             description="feeds whose power reaches it; empty: all feeds")
+    attenuation: Ratio | None = Field(
+        None, description='seam: leakage below the forward power, e.g. "60 dB"')
+    shape: Literal["circular", "rectangular"] | None = Field(None, description="aperture cells")
+    diameter: PosLength | None = None
+    width: PosLength | None = None
+    height: PosLength | None = None
+    depth: PosLength | None = Field(None, description="aperture: length of each tube (plate "
+                                                      "thickness)")
+    count: int = Field(1, ge=1, description="aperture: number of identical cells")
+    size: PosLength | None = Field(
+        None, description="largest dimension of the leaking area (seam length, panel "
+                          "diagonal); sets the far-field distance")
+
+
 class LeakSpec(_Strict):
-    power_density: PowerDensity
-    at: PosLength
+    model: Literal["survey", "derived"] | None = Field(
+        None, description='"survey" (readings) or "derived" (forward power and leak paths); '
+                          "not declared: from the keys given")
+    power_density: PowerDensity | None = Field(None, description="one survey reading")
+    at: PosLength | None = None
+    feed: str | None = None
+    forward_power: Power | None = None
+    size: PosLength | None = None
+    readings: list[SurveyReadingSpec] = Field(default_factory=list)
+    paths: list[LeakPathSpec] = Field(default_factory=list)
+
+
+class ControlledAreaSpec(_Strict):
+    z: ZSpan = Field(description="axial extent of the controlled area, in the spec's z")
+    radius: PosLength = Field(description="radius of the controlled area about the source axis")
 
 
 class ExposureSpec(_Strict):
-    table: str = Field(min_length=1)
+    table: str | None = Field(None, description="reference-level table id (shipped, or in "
+                                                "table_file)")
+    table_file: str | None = Field(
+        None, description="site table file next to the spec, in the form of the shipped "
+                          "tables; replaces them")
     leak: LeakSpec | None = None
     occupied_distance: PosLength
+    controlled_area: ControlledAreaSpec | None = Field(
+        None, description="boundary the static-field lines must stay inside; not declared: "
+                          "the outer surface of the magnet (the worst case)")
+    cryogenic_magnet: bool | None = Field(
+        None, description="superconducting coils with cryogens; not declared: inferred from "
+                          "the winding current density")
 
 
 class ReviewSpec(_Strict):
@@ -564,11 +622,10 @@ class _CrossCheck:
                 if layer.thickness_tolerance >= layer.thickness:
                     self.fail(("window", i, "layers", j, "thickness_tolerance"),
                               "tolerance must be below the thickness")
-        if s.exposure is not None:
-            self._exposure_table(s.exposure.table, ("exposure", "table"))
+        exposure = self._exposure(feed_ids) if s.exposure is not None else None
         if self.problems:
             return None  # type: ignore[return-value]
-        return self._model(sources)
+        return self._model(sources, exposure)
 
     def _launch(self, f: FeedSpec, i: int) -> None:
         la = f.launch
@@ -648,16 +705,10 @@ class _CrossCheck:
                 self.fail(loc + (key,), f"[{lo:g}, {hi:g}] must contain the {name} {nominal:g} "
                           "(low ≤ nominal ≤ high)")
 
-    def _exposure_table(self, name: str, loc: tuple) -> None:
-        from rfcheck import data
+    def _exposure(self, feed_ids: set[str]) -> m.Exposure | None:
+        from rfcheck.spec_exposure import exposure_model
 
-        try:
-            tables = data.load("exposure.toml")
-        except FileNotFoundError:
-            return
-        if name not in tables:
-            self.fail(loc, f"unknown reference-level table '{name}'; "
-                           f"use one of: {', '.join(sorted(tables))}")
+        return exposure_model(self, self.spec.exposure, feed_ids)
 
     # ---- conversion
 
@@ -712,7 +763,7 @@ class _CrossCheck:
             return None
         return source
 
-    def _model(self, sources: list) -> m.SourceModel:
+    def _model(self, sources: list, exposure: m.Exposure | None) -> m.SourceModel:
         s = self.spec
         p = s.plasma
         if isinstance(p.profile, str):
@@ -755,11 +806,6 @@ class _CrossCheck:
                                      mt.source, "user", (), mt.thermal_conductivity,
                                      mt.permittivity_range, mt.loss_tangent_range)
                           for mt in s.material)
-        exposure = None
-        if s.exposure is not None:
-            leak = (m.Leak(s.exposure.leak.power_density, s.exposure.leak.at)
-                    if s.exposure.leak else None)
-            exposure = m.Exposure(s.exposure.table, leak, s.exposure.occupied_distance)
         return m.SourceModel(
             source=m.SourceInfo(s.source.name, s.source.revision, s.source.description,
                                 s.source.lab),

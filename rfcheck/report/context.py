@@ -4,7 +4,6 @@ from __future__ import annotations
 
 from rfcheck import __version__
 from rfcheck.run import RULESET_VERSION
-from rfcheck import data
 from rfcheck.findings import Finding, Status
 
 FAMILY_TITLES = {
@@ -105,6 +104,9 @@ def build(run, figures: list[dict] | None = None) -> dict:
     attention = [_finding_row(f) for f in run.findings
                  if f.status in (Status.FAIL, Status.ERROR, Status.WARN, Status.WAIVED)]
     m = run.model
+    from .cautions import select_cautions
+
+    cautions, cautions_omitted = select_cautions(m, run.findings)
     return {
         "title": "RF and plasma-source design review",
         "source": {"name": run.spec_name, "revision": run.spec_revision,
@@ -119,7 +121,8 @@ def build(run, figures: list[dict] | None = None) -> dict:
         "attention": attention,
         "characteristics": _characteristic_rows(run.characteristics),
         "figures": figures or [],
-        "cautions": data.load("cautions.toml")["caution"],
+        "cautions": cautions,
+        "cautions_omitted": cautions_omitted,
         "review": {"prepared_by": m.review.prepared_by if m else "",
                    "checked_by": m.review.checked_by if m else "",
                    "approved_by": m.review.approved_by if m else "",

@@ -94,12 +94,14 @@ def axis_field_figure(run) -> dict | None:
 
 
 def all_figures(run) -> list[dict]:
+    from .figure_fringe import fringe_figure
     from .figure_magnet import field_map_figure
     from .figure_path import cma_figure, launch_path_figure
     from .figure_window import window_figure
 
     out = []
-    for make in (axis_field_figure, field_map_figure, window_figure, launch_path_figure, cma_figure):
+    for make in (axis_field_figure, field_map_figure, window_figure, launch_path_figure, cma_figure,
+                 fringe_figure):
         fig = make(run)
         if fig:
             out.append(fig)
