@@ -177,7 +177,7 @@ def _elements(f: ArrayLike, b: ArrayLike, n_e: ArrayLike, ions: Any, collision_f
         (nf2 * cx, bf * cy, 1.0 + 1j * (np.asarray(nu, dtype=float) / (TWO_PI * f)))
         for cx, cy, nu in zip(coeffs.x_rows, coeffs.y_rows, nus)
     ]
-    return _complex_elements(terms)
+    return _complex_elements(terms, want_k)
 
 
 def _real_elements(f: NDArray, b: NDArray, n_e: NDArray, coeffs: _Coefficients, want_k: bool):
@@ -209,8 +209,8 @@ def _real_elements(f: NDArray, b: NDArray, n_e: NDArray, coeffs: _Coefficients, 
     return (*out, _k_from_terms(hs)) if want_k else out
 
 
-def _complex_elements(terms):
-    """Elements with collisions from per-species (X, Y, U)."""
+def _complex_elements(terms, want_k: bool = True):
+    """Elements with collisions from per-species (X, Y, U); K = RL − PS only if wanted."""
     hs = []
     for i, (x, y, u) in enumerate(terms):
         up = u + y
@@ -220,12 +220,14 @@ def _complex_elements(terms):
         ts = tr * (u / um)  # X U / W
         td = tr * (y / um)  # X Y / W
         tp = x / u
-        hs.append((tr / (um * u), y, u))  # h = X / (U W)
+        if want_k:
+            hs.append((tr / (um * u), y, u))  # h = X / (U W)
         if i == 0:
             r, l, s, d, p = tr, tl, ts, td, tp
         else:
             r, l, s, d, p = r + tr, l + tl, s + ts, d + td, p + tp
-    return 1.0 - s, d, 1.0 - p, 1.0 - r, 1.0 - l, _k_from_terms(hs)
+    out = (1.0 - s, d, 1.0 - p, 1.0 - r, 1.0 - l)
+    return (*out, _k_from_terms(hs)) if want_k else out
 
 
 def _k_from_terms(hs) -> NDArray:

@@ -134,18 +134,26 @@ def collision_frequency(plasma: Plasma, n_e, t_e, pressure=None) -> np.ndarray:
     ν_en from the neutral gas when the spec gives one and its cross section is tabulated
     (else 0); ν_ei with Z_eff = Σ fraction_s Z_s (zero where n_e = 0).
     """
+    return _electron_ion(plasma, n_e, t_e) + _electron_neutral(plasma, t_e, pressure)
+
+
+def _electron_ion(plasma: Plasma, n_e, t_e) -> np.ndarray:
     n_e = np.asarray(n_e, dtype=float)
     t_e = np.asarray(t_e, dtype=float)
     z_eff = sum(frac * sp.charge_number for sp, frac in ion_mixture(plasma.ions)) or 1.0
     with np.errstate(divide="ignore", invalid="ignore"):
-        nu = np.where(n_e > 0, electron_ion_collision_frequency(np.maximum(n_e, 1.0), t_e, z_eff),
-                      0.0)
+        return np.where(n_e > 0,
+                        electron_ion_collision_frequency(np.maximum(n_e, 1.0), t_e, z_eff), 0.0)
+
+
+def _electron_neutral(plasma: Plasma, t_e, pressure=None):
+    """ν_en (s^-1) of the neutral gas (0 without one or without its cross section)."""
     gas = plasma.neutral
-    if gas is not None and gas.species in known_gases():
-        p_gas = gas.pressure.min if pressure is None else np.asarray(pressure, dtype=float)
-        nu = nu + electron_neutral_collision_frequency(gas.species, p_gas, t_e,
-                                                       gas.temperature)
-    return nu
+    if gas is None or gas.species not in known_gases():
+        return 0.0
+    p_gas = gas.pressure.min if pressure is None else np.asarray(pressure, dtype=float)
+    return electron_neutral_collision_frequency(gas.species, p_gas, np.asarray(t_e, dtype=float),
+                                                gas.temperature)
 
 
 @dataclass(frozen=True)
@@ -239,6 +247,7 @@ class LaunchPath:
         self._reach: dict = {}
         self._wave: dict = {}
         self._load: dict = {}
+        self._nu_en: dict = {}
 
     # ---- positions
 
@@ -302,9 +311,12 @@ class LaunchPath:
     def nu(self, corner: Corner, n_e) -> np.ndarray:
         """Collision frequency with the NU_FLOOR of the full-wave n² (s^-1)."""
         floor = NU_FLOOR * TWO_PI * corner.frequency
-        p_gas = None if math.isnan(corner.pressure) else corner.pressure
-        return np.maximum(collision_frequency(self.plasma, n_e, corner.electron_temperature,
-                                              p_gas), floor)
+        key = (corner.electron_temperature, corner.pressure)
+        if key not in self._nu_en:  # a corner's neutral part is one number: computed once
+            p_gas = None if math.isnan(corner.pressure) else corner.pressure
+            self._nu_en[key] = _electron_neutral(self.plasma, corner.electron_temperature, p_gas)
+        nu = _electron_ion(self.plasma, n_e, corner.electron_temperature) + self._nu_en[key]
+        return np.maximum(nu, floor)
 
     def n2(self, corner: Corner, s=None, collisions: bool = True) -> np.ndarray:
         """n² of the launched wave at distances s (default: the path samples)."""
