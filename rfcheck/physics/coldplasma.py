@@ -180,6 +180,45 @@ def _elements(f: ArrayLike, b: ArrayLike, n_e: ArrayLike, ions: Any, collision_f
     return _complex_elements(terms, want_k)
 
 
+def _selected(f: ArrayLike, b: ArrayLike, n_e: ArrayLike, ions: Any, collision_frequency: Any,
+              names: tuple[str, ...]) -> dict[str, NDArray]:
+    """Only the named Stix elements ("S", "D", "P", "R", "L"), with the same per-species sums
+    as :func:`stix` (lossless inputs take the full real path, which is cheap)."""
+    coeffs = _species_coefficients(ions)
+    nus = _collision_list(collision_frequency, coeffs.names)
+    if nus is None:
+        e = StixElements(*_elements(f, b, n_e, ions, collision_frequency, want_k=False)[:5])
+        return {k: getattr(e, k) for k in names}
+    f = np.asarray(f, dtype=float)
+    bf = np.asarray(b, dtype=float) / f
+    nf2 = np.asarray(n_e, dtype=float) / (f * f)
+    sums: dict[str, Any] = {}
+    for cx, cy, nu in zip(coeffs.x_rows, coeffs.y_rows, nus):
+        x, y = nf2 * cx, bf * cy
+        u = 1.0 + 1j * (np.asarray(nu, dtype=float) / (TWO_PI * f))
+        up = um = None
+        terms = {}
+        if "R" in names or "S" in names or "D" in names:
+            up = u + y
+        if "L" in names or "S" in names or "D" in names:
+            um = u - y
+        if "R" in names:
+            terms["R"] = x / up
+        if "L" in names:
+            terms["L"] = x / um
+        if "S" in names or "D" in names:
+            w = x / (up * um)
+            if "S" in names:
+                terms["S"] = w * u
+            if "D" in names:
+                terms["D"] = w * y
+        if "P" in names:
+            terms["P"] = x / u
+        for k, t in terms.items():
+            sums[k] = t if k not in sums else sums[k] + t
+    return {k: (sums[k] if k == "D" else 1.0 - sums[k]) for k in names}
+
+
 def _real_elements(f: NDArray, b: NDArray, n_e: NDArray, coeffs: _Coefficients, want_k: bool):
     """Lossless elements: plain contiguous numpy operations, species by species."""
     bf = b / f
@@ -427,24 +466,24 @@ def n2_branch(
 def n2_o_mode(f: ArrayLike, b: ArrayLike, n_e: ArrayLike, ions: Any = (),
               collision_frequency: Any = 0.0) -> NDArray:
     """Ordinary mode across B0 (theta = pi/2): n^2 = P (Stix 1992, ch. 1)."""
-    return stix(f, b, n_e, ions, collision_frequency).P
+    return _scalar(_selected(f, b, n_e, ions, collision_frequency, ("P",))["P"])
 
 
 def n2_x_mode(f: ArrayLike, b: ArrayLike, n_e: ArrayLike, ions: Any = (),
               collision_frequency: Any = 0.0) -> NDArray:
     """Extraordinary mode across B0 (theta = pi/2): n^2 = RL/S (Stix 1992, ch. 1); +-inf at S = 0."""
-    e = stix(f, b, n_e, ions, collision_frequency)
+    e = _selected(f, b, n_e, ions, collision_frequency, ("R", "L", "S"))
     with np.errstate(divide="ignore", invalid="ignore"):
-        return (e.R * e.L) / e.S
+        return _scalar((e["R"] * e["L"]) / e["S"])
 
 
 def n2_r_wave(f: ArrayLike, b: ArrayLike, n_e: ArrayLike, ions: Any = (),
               collision_frequency: Any = 0.0) -> NDArray:
     """Right-hand circularly polarised wave along B0 (theta = 0): n^2 = R (Stix 1992, ch. 1)."""
-    return stix(f, b, n_e, ions, collision_frequency).R
+    return _scalar(_selected(f, b, n_e, ions, collision_frequency, ("R",))["R"])
 
 
 def n2_l_wave(f: ArrayLike, b: ArrayLike, n_e: ArrayLike, ions: Any = (),
               collision_frequency: Any = 0.0) -> NDArray:
     """Left-hand circularly polarised wave along B0 (theta = 0): n^2 = L (Stix 1992, ch. 1)."""
-    return stix(f, b, n_e, ions, collision_frequency).L
+    return _scalar(_selected(f, b, n_e, ions, collision_frequency, ("L",))["L"])
