@@ -230,11 +230,21 @@ def _zoom(model, scales, start, step, lower, upper, periodic, levels, maximise=F
         b = np.linalg.norm(field(_cartesian(cand[..., 0], cand[..., 1], cand[..., 2])),
                            axis=-1)
         b = _defined(b, "chamber")
-        best = np.argmax(b, axis=1) if maximise else np.argmin(b, axis=1)
+        best = _pick(b, maximise)
         x = cand[rows, best]
         value = b[rows, best]
         step = step / 2.0
     return x, value
+
+
+def _pick(b, maximise: bool, rtol: float = 1e-9):
+    """Index of the best value along the last axis, the first of those within rtol of it.
+
+    Symmetric sources give equal extrema at mirror azimuths; which one wins must not depend
+    on float noise (or on the NumPy build), so near-ties go to the first sample."""
+    b = np.asarray(b)
+    ref = b.max(axis=-1, keepdims=True) if maximise else b.min(axis=-1, keepdims=True)
+    return np.argmax(np.abs(b - ref) <= rtol * np.abs(ref), axis=-1)
 
 
 def _point(x, b, where) -> FieldPoint:
@@ -280,7 +290,7 @@ def _extremum(profile: AxisProfile, lo, hi, maximise) -> FieldPoint:
     z, b = profile.z, np.abs(profile.b_z)
     inside = (z >= lo) & (z <= hi)
     idx = np.nonzero(inside)[0]
-    pick = idx[np.argmax(b[idx]) if maximise else np.argmin(b[idx])]
+    pick = idx[_pick(b[idx], maximise)]
     sign = -1.0 if maximise else 1.0
     a, c = z[max(pick - 1, idx[0])], z[min(pick + 1, idx[-1])]
     best_z, best_b = float(z[pick]), float(b[pick])
@@ -450,7 +460,7 @@ def radial_wall_fields(model, chamber: Chamber, z, grid: GeometryGrid | None = N
 
     def best(field):
         b = _defined(np.linalg.norm(field(points), axis=-1), "wall")
-        start = np.stack([np.full(len(z), radius), phi[np.argmax(b, axis=1)], z], axis=-1)
+        start = np.stack([np.full(len(z), radius), phi[_pick(b, True)], z], axis=-1)
         if len(phi) == 1:
             return start, b[:, 0]
         return _zoom(model, s, start, step, lower, upper, periodic, grid.zoom_levels,
@@ -494,7 +504,7 @@ def _grid_best(model, s, r, phi, z, maximise=False):
     """Best |B| per scale over a (r, phi, z) tensor grid: (S, 3) coordinates and values."""
     rr, pp, zz = np.meshgrid(r, phi, z, indexing="ij")
     b = _defined(model.magnitude(_cartesian(rr, pp, zz), s), "chamber").reshape(len(s), -1)
-    idx = np.argmax(b, axis=1) if maximise else np.argmin(b, axis=1)
+    idx = _pick(b, maximise)
     coords = np.stack([rr.ravel(), pp.ravel(), zz.ravel()], axis=-1)
     return coords[idx], b[np.arange(len(s)), idx]
 
