@@ -26,7 +26,7 @@ from pathlib import Path
 import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-from harness import Row, alternate, print_table  # noqa: E402
+from harness import Row, alternate, cli_main  # noqa: E402
 
 from rfcheck.physics.coldplasma import refractive_index_squared, stix
 from rfcheck.physics.constants import C
@@ -142,12 +142,7 @@ def measure(quick: bool = False) -> list[Row]:
 
 
 def main() -> None:
-    import argparse
-
-    ap = argparse.ArgumentParser()
-    ap.add_argument("--quick", action="store_true")
-    args = ap.parse_args()
-    print_table(measure(args.quick), args.quick)
+    cli_main(measure)
 
 
 if __name__ == "__main__":

@@ -17,14 +17,13 @@ Run: python benchmarks/bench_magnet.py [--quick]
 
 from __future__ import annotations
 
-import argparse
 import sys
 from pathlib import Path
 
 import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-from harness import Row, alternate, print_table  # noqa: E402
+from harness import Row, alternate, cli_main  # noqa: E402
 
 from rfcheck.magnet.sources import FieldModel
 from rfcheck.model import Coil, Magnet, Multipole
@@ -106,10 +105,7 @@ def measure(quick: bool = False, repeat: int = 5) -> list[Row]:
 
 
 def main() -> None:
-    ap = argparse.ArgumentParser()
-    ap.add_argument("--quick", action="store_true")
-    args = ap.parse_args()
-    print_table(measure(args.quick), args.quick)
+    cli_main(measure)
 
 
 if __name__ == "__main__":

@@ -13,7 +13,6 @@ the peak resident memory of `rfcheck check --json` on every example (target < 20
 
 from __future__ import annotations
 
-import argparse
 import dataclasses
 import sys
 import time
@@ -22,7 +21,7 @@ from pathlib import Path
 import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-from harness import Row, Timing, peak_rss_mib, print_table  # noqa: E402
+from harness import Row, Timing, peak_rss_mib, cli_main  # noqa: E402
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "examples" / "bench-ecr-reactor.toml"
@@ -166,10 +165,7 @@ def measure(quick: bool = False) -> list[Row]:
 
 
 def main() -> None:
-    ap = argparse.ArgumentParser()
-    ap.add_argument("--quick", action="store_true")
-    args = ap.parse_args()
-    print_table(measure(args.quick), args.quick)
+    cli_main(measure)
 
 
 if __name__ == "__main__":

@@ -20,7 +20,7 @@ from skrf.network import cascade_list
 from rfcheck.physics.multilayer import Layer, te10_embedding, window_response
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-from harness import Row, alternate, print_table  # noqa: E402
+from harness import Row, alternate, cli_main  # noqa: E402
 
 A, B = 86.36e-3, 43.18e-3  # WR-340 (EIA RS-261-B)
 F = np.linspace(2.2e9, 3.3e9, 1001)
@@ -57,13 +57,8 @@ def measure(quick: bool = False) -> list[Row]:
                 f"{ref.text()}; {ours.text()}; max |dGamma| {diff:.1e}")]
 
 
-def main():
-    import argparse
-
-    ap = argparse.ArgumentParser()
-    ap.add_argument("--quick", action="store_true")
-    args = ap.parse_args()
-    print_table(measure(args.quick), args.quick)
+def main() -> None:
+    cli_main(measure)
 
 
 if __name__ == "__main__":

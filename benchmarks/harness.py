@@ -128,3 +128,13 @@ def print_table(rows: list[Row], quick: bool = False) -> None:
         print(f"{r.name:<{width}}  {r.value:>10.3g} {r.unit:<2} {r.target:>10}  {status}")
         if r.detail:
             print(f"{'':<{width}}    {r.detail}")
+
+
+def cli_main(measure: Callable[[bool], list[Row]]) -> None:
+    """The command line of every benchmark: `--quick` for CI (checks that it runs)."""
+    import argparse
+
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--quick", action="store_true")
+    args = ap.parse_args()
+    print_table(measure(args.quick), args.quick)
