@@ -60,6 +60,7 @@ from rfcheck.physics.coldplasma import (cma_region, n2_branch, n2_l_wave, n2_o_m
 from rfcheck.physics.frequencies import critical_density, ecr_field, ion_cyclotron_field
 from rfcheck.physics.fullwave import EXPONENT_RTOL, EvanescentLayers, evanescent_layers
 from rfcheck.physics.species import ion_mixture
+from rfcheck.physics.domain import guard_public
 
 __all__ = ["PathAccess", "launch_path_access", "path_landmarks", "mode_n2"]
 
@@ -343,3 +344,6 @@ def launch_path_access(z: ArrayLike, b: ArrayLike, n_e: ArrayLike, f: float, mod
         z=z, n2=n2, x=x, y=y, region=cma_region(x, y).region,
         landmarks={k: to_z(v) for k, v in landmarks_s.items()},
     )
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

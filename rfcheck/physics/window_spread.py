@@ -67,6 +67,7 @@ from numpy.typing import ArrayLike, NDArray
 
 from rfcheck.physics.multilayer import (Embedding, Layer, embedding_ports, layer_matrix,
                                        reflection_band, scattering, window_response)
+from rfcheck.physics.domain import guard_public
 
 __all__ = [
     "MAX_COMBINATIONS",
@@ -559,3 +560,6 @@ def band_over_spread(f_centre: float, limit: float, spreads: Sequence[LayerSprea
         binding.append(box.point(values[int(np.argmax(np.abs(g[:, 0])))]))
     return SpreadBand(b.low, b.high, b.low_open, b.high_open, binding[0], binding[1],
                       len(rows), evaluations, converged)
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)
