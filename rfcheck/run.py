@@ -1,10 +1,23 @@
 """One run: evaluate the selected rules over the envelope and keep everything outputs need.
 
 `Run` is the single result object; the terminal table, the JSON and the PDF are views of it.
+
+Verdict (`Run.verdict`, reasons in `Run.verdict_reasons`):
+
+* ``fail``: a finding fails or could not be evaluated (status error);
+* ``not-evaluated``: nothing failed, but the review did not happen — the policy selects no
+  rule, the selected rules gave no finding, no finding of an error-severity rule was
+  evaluated (all not applicable, waived, or only warning-level checks ran), or every
+  evaluated finding of an error-severity family is waived;
+* ``warn``: a finding warns; ``pass``: otherwise.
+
+So a pass never comes from nothing evaluated. `Run.exit_fails` says whether the command
+line should exit 1 (fail or not evaluated).
 """
 
 from __future__ import annotations
 
+import datetime as dt
 import hashlib
 import traceback
 from dataclasses import dataclass, field, replace
@@ -19,6 +32,10 @@ from rfcheck.spec import LoadedSpec
 
 JSON_SCHEMA_ID = "rfcheck-run/1"
 RULESET_VERSION = "1"
+#: every verdict a run can have
+VERDICTS = ("pass", "warn", "fail", "not-evaluated")
+#: statuses of findings that were evaluated against their requirement
+_EVALUATED = (Status.PASS, Status.WARN, Status.FAIL, Status.WAIVED)
 
 
 @dataclass(frozen=True)
@@ -49,15 +66,83 @@ class Run:
     rules: tuple[RuleUse, ...]
     model: object = field(repr=False, compare=False, default=None)
     context: object = field(repr=False, compare=False, default=None)
+    #: how many rules the catalogue holds (the policy selected `len(rules)` of them)
+    rules_total: int = 0
+    #: waivers of the policy that waived no finding: {"waiver", "file", "line", "why"}
+    unused_waivers: tuple[dict, ...] = ()
+
+    def coverage_problems(self) -> tuple[str, ...]:
+        """Why this run did not review the design, if it did not (empty when it did)."""
+        if not self.rules:
+            return ("the policy selects no rule (see its [select] include and exclude)",)
+        if not self.findings:
+            return ("the selected rules gave no finding",)
+        error_rules = {r.id for r in self.rules if r.severity == "error"}
+        out = []
+        if all(f.status is Status.NOT_APPLICABLE for f in self.findings):
+            out.append("every finding is not applicable: nothing was evaluated")
+        elif not any(f.status in _EVALUATED and f.status is not Status.WAIVED
+                     and f.rule in error_rules for f in self.findings):
+            out.append("no requirement of error severity was evaluated (every such finding is "
+                       "not applicable or waived, or no such rule is selected)")
+        families: dict[str, list[Finding]] = {}
+        for f in self.findings:
+            if f.rule in error_rules and f.status in _EVALUATED:
+                families.setdefault(f.rule.split(".", 1)[0], []).append(f)
+        for fam, fs in sorted(families.items()):
+            if all(f.status is Status.WAIVED for f in fs):
+                out.append(f"every evaluated finding of the {fam} family is waived "
+                           f"({len(fs)} finding{'s' if len(fs) != 1 else ''}): the family was "
+                           "not reviewed")
+        return tuple(out)
 
     @property
     def verdict(self) -> str:
         statuses = {f.status for f in self.findings}
         if Status.FAIL in statuses or Status.ERROR in statuses:
             return "fail"
+        if self.coverage_problems():
+            return "not-evaluated"
         if Status.WARN in statuses:
             return "warn"
         return "pass"
+
+    @property
+    def verdict_reasons(self) -> tuple[str, ...]:
+        """Sentences that say why the verdict is what it is (the coverage problems included
+        whatever the verdict)."""
+        c = self.counts()
+        out = []
+        if c["fail"]:
+            out.append(f"{c['fail']} finding{'s' if c['fail'] != 1 else ''} fail")
+        if c["error"]:
+            out.append(f"{c['error']} finding{'s' if c['error'] != 1 else ''} could not be "
+                       "evaluated")
+        out += self.coverage_problems()
+        if not out:
+            out.append(f"{c['warn']} warning{'s' if c['warn'] != 1 else ''}" if c["warn"]
+                       else "every evaluated requirement is met")
+        if self.rules and self.rules_total and len(self.rules) < self.rules_total:
+            out.append(f"the policy selects {len(self.rules)} of {self.rules_total} rules")
+        if self.unused_waivers:
+            n = len(self.unused_waivers)
+            out.append(f"{n} waiver{'s' if n != 1 else ''} of the policy waived no finding")
+        return tuple(out)
+
+    @property
+    def verdict_reason(self) -> str:
+        """The reasons as one line, for the text view."""
+        return "; ".join(self.verdict_reasons)
+
+    @property
+    def verdict_label(self) -> str:
+        """The verdict as printed: PASS, WARN, FAIL, NOT EVALUATED."""
+        return self.verdict.replace("-", " ").upper()
+
+    @property
+    def exit_fails(self) -> bool:
+        """Whether the command line exits 1 without --strict: a failed review or none."""
+        return self.verdict in ("fail", "not-evaluated")
 
     def counts(self) -> dict[str, int]:
         out = {s.value: 0 for s in Status}
@@ -73,7 +158,9 @@ class Run:
                      "file": self.spec_file, "sha256": self.spec_sha256},
             "policy": {"name": self.policy_name, "sha256": self.policy_sha256},
             "verdict": self.verdict,
+            "verdict_reasons": list(self.verdict_reasons),
             "counts": self.counts(),
+            "unused_waivers": [dict(u) for u in self.unused_waivers],
             "findings": [f.to_json() for f in self.findings],
             "characteristics": self.characteristics,
             "rules": [{"id": r.id, "summary": r.summary, "severity": r.severity,
@@ -94,6 +181,9 @@ def run(loaded: LoadedSpec, policy: Policy) -> Run:
                                  if policy.selected(r.id)})
     findings: list[Finding] = []
     used: list[RuleUse] = []
+    now = dt.datetime.now().astimezone()  # one instant for every waiver expiry of the run
+    matched: set[int] = set()  # waivers (by index) whose rule and subject met a finding
+    applied: set[int] = set()  # waivers (by id) that waived a finding
     for r in all_rules():
         if not policy.selected(r.id):
             continue
@@ -114,10 +204,14 @@ def run(loaded: LoadedSpec, policy: Policy) -> Run:
                                 message=f"the rule could not be evaluated: {type(exc).__name__}: "
                                         f"{exc} (at {tb.name}, line {tb.lineno})")]
         for f in produced:
+            for i, w in enumerate(policy.waivers):
+                if w.matches(f.rule, f.subject):
+                    matched.add(i)
             if f.status in (Status.FAIL, Status.WARN):
-                w, expired = policy.waiver_for(f.rule, f.subject)
+                w, expired = policy.waiver_for(f.rule, f.subject, now=now)
                 if w is not None:
                     f = f.waived(w.to_json())
+                    applied.add(id(w))
                 elif expired is not None:
                     f = replace(f, message=f"{f.message} [waiver {expired.reference} expired on "
                                            f"{expired.expires}: not applied]")
@@ -130,7 +224,32 @@ def run(loaded: LoadedSpec, policy: Policy) -> Run:
         spec_file=loaded.path.name, spec_sha256=sha256_text(loaded.text), spec_text=loaded.text,
         spec_normalised=loaded.normalised, policy_name=policy.name,
         policy_sha256=policy.sha256, policy_texts=policy.texts, findings=tuple(findings),
-        characteristics=chars, rules=tuple(used), model=model, context=ctx)
+        characteristics=chars, rules=tuple(used), model=model, context=ctx,
+        rules_total=len(all_rules()),
+        unused_waivers=_unused_waivers(policy, used, matched, applied, now))
 
 
-__all__ = ["Run", "RuleUse", "run"]
+def _unused_waivers(policy: Policy, used: list[RuleUse], matched: set[int], applied: set[int],
+                    now: dt.datetime) -> tuple[dict, ...]:
+    """Each waiver that waived no finding, with why."""
+    import fnmatch
+
+    selected = [r.id for r in used]
+    out = []
+    for i, w in enumerate(policy.waivers):
+        if id(w) in applied:
+            continue
+        if not any(fnmatch.fnmatchcase(r, w.rule) for r in selected):
+            why = "its rule is not selected by the policy"
+        elif i not in matched:
+            why = ("no finding of this rule has this subject" if w.subject is not None
+                   else "the rule gave no finding")
+        elif w.expired(now):
+            why = f"it expired ({w.expires})"
+        else:
+            why = "the findings it matches need no waiver (they pass or are not applicable)"
+        out.append({"waiver": w.to_json(), "file": w.origin, "line": w.line, "why": why})
+    return tuple(out)
+
+
+__all__ = ["Run", "RuleUse", "VERDICTS", "run"]

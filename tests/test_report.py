@@ -80,3 +80,26 @@ def test_every_bundled_example_renders(name):
     for f in result.findings:
         assert f.rule in html
     json.dumps(result.to_json(), allow_nan=False)
+
+
+def test_cover_states_not_evaluated_with_its_reason_and_unused_waivers(tmp_path):
+    p = tmp_path / "empty.toml"
+    p.write_text('[select]\ninclude = []\n[[waiver]]\nrule = "window.reflection"\n'
+                 'reason = "tuned on site"\nreference = "ECN-77"\n', encoding="utf-8")
+    result = run(load_spec(DEMO), load_policy(p))
+    assert result.verdict == "not-evaluated"
+    doc = pdfium_pages(render_pdf(result))
+    cover = " ".join(doc[0].split())
+    assert "NOT EVALUATED" in cover and "This is not a pass" in cover
+    assert "the policy selects no rule" in cover
+    assert "PASS" not in cover
+    rest = " ".join(" ".join(doc[1:]).split())
+    assert "Waivers that waived no finding" in rest and "ECN-77" in rest
+    assert "its rule is not selected by the policy" in rest
+
+
+def pdfium_pages(data: bytes) -> list[str]:
+    import pypdfium2 as pdfium
+
+    pdf = pdfium.PdfDocument(data)
+    return [pdf[i].get_textpage().get_text_range() for i in range(len(pdf))]

@@ -5,6 +5,26 @@ eV. The dispersion core's public names are importable from here; the other modul
 (waveguide, multilayer, rfpower, fullwave, access, absorption, overdense, exposure) are
 imported by name (``from rfcheck.physics.waveguide import line_from_name``) to keep this
 package's import light.
+
+Odd input
+---------
+Every public function (each module's ``__all__``) treats non-finite and out-of-domain input
+deliberately and never prints a NumPy warning (``physics/domain.guard_public`` runs each
+under ``numpy.errstate(all="ignore")``):
+
+* array (element-wise) functions return the IEEE result where an input is NaN, ±inf, zero,
+  negative or huge: NaN where the formula has no value (a NaN input, the square root of a
+  negative density, a cutoff that does not exist), ±inf where it diverges (a zero field or
+  distance in a denominator), the limit where it has one; finite input in the domain gives
+  finite results, and the function's docstring names any NaN it returns on purpose;
+* scalar set-up functions (guides, embeddings, layers, grids, paths) raise ValueError (or
+  TypeError for a wrong type) with a message, including where a Python float operation
+  would divide by zero or overflow;
+* integer parameters that set the amount of work (harmonics, mode indices and counts, grid
+  points, budgets) are bounded and checked (``domain.check_index``): ValueError beyond.
+
+Callers at the spec boundary have refused non-finite values already; rules decide what a NaN
+result means for a finding (``rfcheck.findings.Quantity`` reports it as undefined).
 """
 
 from rfcheck.physics.cma import CMA_REGIONS, CmaRegion, cma_region

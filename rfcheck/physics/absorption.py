@@ -27,6 +27,7 @@ from numpy.typing import ArrayLike, NDArray
 
 from rfcheck.physics.constants import C, M_E_C2_EV, TWO_PI
 from rfcheck.physics.frequencies import critical_density
+from rfcheck.physics.domain import check_index, guard_public
 
 __all__ = [
     "Estimate",
@@ -46,6 +47,8 @@ __all__ = [
 WEAK_COLLISION_LIMIT = 0.1
 #: weakly relativistic limit of the optical-depth forms, eV (validity of the tenuous, weakly relativistic forms)
 MAX_TEMPERATURE_EV = 20e3
+#: highest harmonic of optical_depth_xm (ValueError above)
+MAX_HARMONIC = 20
 
 
 class Estimate(NamedTuple):
@@ -297,10 +300,12 @@ def optical_depth_xm(harmonic: int, f: ArrayLike, n_e: ArrayLike, t_e_ev: ArrayL
     ----------
     Tenuous-plasma limit of M. Bornatici et al., Nucl. Fusion 23 (1983) 1153.
     """
-    m = int(harmonic)
-    if m < 2:
+    if isinstance(harmonic, (int, float)) and harmonic < 2 and float(harmonic) == int(harmonic):
         raise ValueError("X-mode optical depth is given for harmonics m >= 2 only (X1 needs "
                          "the full finite-density treatment)")
+    # the tenuous-plasma coefficient m^(2m-1)/(2^(m-1)(m-1)!) is meaningless far beyond the
+    # harmonics a source heats at; the bound also keeps the factorial small
+    m = check_index("harmonic", harmonic, 2, MAX_HARMONIC)
     coefficient = m ** (2 * m - 1) / (2 ** (m - 1) * math.factorial(m - 1))
     return _optical_depth(coefficient, m - 1, f, n_e, t_e_ev, l_b, 1.0 - 1.0 / m,
                           max_density_ratio, "the X mode from the low-field side (R cutoff)")
@@ -317,3 +322,6 @@ def optical_depth_x2(f: ArrayLike, n_e: ArrayLike, t_e_ev: ArrayLike, l_b: Array
     Tenuous-plasma limit of M. Bornatici et al., Nucl. Fusion 23 (1983) 1153.
     """
     return optical_depth_xm(2, f, n_e, t_e_ev, l_b, max_density_ratio=max_density_ratio)
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

@@ -60,6 +60,7 @@ from rfcheck.physics.coldplasma import (cma_region, n2_branch, n2_l_wave, n2_o_m
 from rfcheck.physics.frequencies import critical_density, ecr_field, ion_cyclotron_field
 from rfcheck.physics.fullwave import EXPONENT_RTOL, EvanescentLayers, evanescent_layers
 from rfcheck.physics.species import ion_mixture
+from rfcheck.physics.domain import check_index, guard_public
 
 __all__ = ["PathAccess", "launch_path_access", "path_landmarks", "mode_n2"]
 
@@ -68,6 +69,8 @@ __all__ = ["PathAccess", "launch_path_access", "path_landmarks", "mode_n2"]
 ROUNDING_FLOOR = 1e-12
 #: Times the cells of an unresolved evanescent layer are split in four before giving up.
 MAX_LAYER_REFINEMENTS = 6
+#: most sub-steps per sample interval a caller may ask of launch_path_access
+MAX_REFINE = 1024
 
 _CUTOFFS = {"R": ("R cutoff",), "L": ("L cutoff",), "O": ("O cutoff",),
             "X": ("R cutoff", "L cutoff"), "oblique": ("O cutoff", "R cutoff", "L cutoff")}
@@ -230,6 +233,7 @@ def launch_path_access(z: ArrayLike, b: ArrayLike, n_e: ArrayLike, f: float, mod
     ----------
     Stix (1992) ch. 1–2 and 13; Budden (1985) ch. 19 (tunnelling).
     """
+    refine = check_index("refine", refine, 1, MAX_REFINE)
     z = np.asarray(z, float)
     b = np.broadcast_to(np.asarray(b, float), z.shape)
     n_e = np.broadcast_to(np.asarray(n_e, float), z.shape)
@@ -290,7 +294,7 @@ def launch_path_access(z: ArrayLike, b: ArrayLike, n_e: ArrayLike, f: float, mod
     if res_s.size and s_end <= 0.0:
         grid = np.zeros(0)
     elif res_s.size:
-        grid = _refined_grid(s, s_end, refine)
+        grid = _refined_grid(s, s_end, refine)  # refine checked below MAX_REFINE
         # stop short of the rounding zone of the target (module docstring)
         resolved = np.nonzero(target_residual(grid) >= ROUNDING_FLOOR)[0]
         grid = grid[:resolved[-1] + 1] if resolved.size else grid[:0]
@@ -343,3 +347,6 @@ def launch_path_access(z: ArrayLike, b: ArrayLike, n_e: ArrayLike, f: float, mod
         z=z, n2=n2, x=x, y=y, region=cma_region(x, y).region,
         landmarks={k: to_z(v) for k, v in landmarks_s.items()},
     )
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

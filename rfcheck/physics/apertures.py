@@ -30,6 +30,7 @@ from numpy.typing import ArrayLike, NDArray
 from rfcheck.physics.constants import C, TWO_PI
 from rfcheck.physics.rfpower import below_cutoff_attenuation_db
 from rfcheck.physics.waveguide import circular_te_cutoff
+from rfcheck.physics.domain import guard_public
 
 __all__ = ["tube_cutoff", "tube_attenuation_db", "array_attenuation_db", "NEPER_DB"]
 
@@ -64,3 +65,6 @@ def tube_attenuation_db(shape: str, depth: ArrayLike, f: ArrayLike, *,
 def array_attenuation_db(single_db: ArrayLike, count: int) -> NDArray:
     """Attenuation of `count` identical cells together, dB: A − 10 log10(count)."""
     return np.asarray(single_db, dtype=float) - 10.0 * math.log10(count)
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

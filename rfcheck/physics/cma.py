@@ -12,6 +12,7 @@ from typing import NamedTuple
 
 import numpy as np
 from numpy.typing import ArrayLike, NDArray
+from rfcheck.physics.domain import guard_public
 
 __all__ = ["CmaRegion", "CMA_REGIONS", "cma_region"]
 
@@ -89,3 +90,6 @@ def cma_region(x: ArrayLike, y: ArrayLike) -> CmaRegion:
     upper = np.select([x < 1.0, x < 1.0 + y], [6, 7], default=8)
     region = np.where(y >= 1.0, upper, below)
     return CmaRegion(_scalar(region), *(_scalar(table[region]) for table in _CMA_PROPAGATION))
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

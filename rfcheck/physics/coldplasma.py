@@ -49,6 +49,7 @@ from numpy.typing import ArrayLike, NDArray
 from rfcheck.physics.cma import CMA_REGIONS, CmaRegion, _scalar, cma_region
 from rfcheck.physics.constants import E_CHARGE, EPS0, M_E, TWO_PI
 from rfcheck.physics.species import ELECTRON, as_species, ion_mixture
+from rfcheck.physics.domain import guard_public
 
 __all__ = [
     "StixElements", "DispersionRoots", "CmaRegion", "CMA_REGIONS", "stix", "refractive_index_squared",
@@ -487,3 +488,6 @@ def n2_l_wave(f: ArrayLike, b: ArrayLike, n_e: ArrayLike, ions: Any = (),
               collision_frequency: Any = 0.0) -> NDArray:
     """Left-hand circularly polarised wave along B0 (theta = 0): n^2 = L (Stix 1992, ch. 1)."""
     return _scalar(_selected(f, b, n_e, ions, collision_frequency, ("L",))["L"])
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

@@ -29,6 +29,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from rfcheck.physics.constants import E_CHARGE, EPS0, K_B, M_E
+from rfcheck.physics.domain import guard_public
 
 __all__ = [
     "coulomb_logarithm",
@@ -271,3 +272,6 @@ def electron_neutral_collision_frequency(
     else:
         rate = _f(cross_section) * mean_electron_speed(_check_temperature(t_e))
     return neutral_density(pressure, gas_temperature) * rate
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

@@ -40,6 +40,7 @@ from numpy.typing import ArrayLike, NDArray
 
 from rfcheck.model import ReferenceTable
 from rfcheck.physics.constants import C, ETA0
+from rfcheck.physics.domain import guard_public
 
 __all__ = ["ReferenceLevel", "reference_level", "leak_power_density", "distance_for_level",
            "point_leak_power_density", "leaked_power", "far_field_distance", "exposure_ratio",
@@ -142,3 +143,6 @@ def far_field_distance(size: ArrayLike, f: ArrayLike) -> NDArray:
 def exposure_ratio(power_densities: ArrayLike, levels: ArrayLike) -> float:
     """Exposure ratio of simultaneous exposure at several frequencies: Σ S_i / S_RL,i."""
     return float(np.sum(np.asarray(power_densities, dtype=float) / np.asarray(levels, dtype=float)))
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

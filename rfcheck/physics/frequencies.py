@@ -22,6 +22,7 @@ from numpy.typing import ArrayLike, NDArray
 
 from rfcheck.physics.constants import E_CHARGE, EPS0, M_E, M_E_C2_EV, TWO_PI
 from rfcheck.physics.species import Species, as_species
+from rfcheck.physics.domain import guard_public
 
 __all__ = [
     "electron_plasma_frequency",
@@ -315,3 +316,6 @@ def ion_cyclotron_field(f: ArrayLike, ion: str | Species, harmonic: ArrayLike = 
     sp = _ion(ion)
     w = TWO_PI * np.asarray(f, dtype=float)
     return w * sp.mass / (abs(sp.charge_number) * E_CHARGE * np.asarray(harmonic, dtype=float))
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

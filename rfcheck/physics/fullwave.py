@@ -47,6 +47,7 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from rfcheck.physics.constants import C, TWO_PI
+from rfcheck.physics.domain import guard_public
 
 __all__ = [
     "SlabResponse",
@@ -563,3 +564,6 @@ def wkb_tunnelling_factor(z: ArrayLike, n2: ArrayLike, frequency: float, *,
     """
     layers = evanescent_layers(z, n2, frequency, exponent_rtol=exponent_rtol)
     return float(np.exp(-2.0 * layers.kappa_integral.sum()))
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

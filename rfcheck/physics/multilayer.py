@@ -47,6 +47,12 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from rfcheck.physics.constants import C, TWO_PI
+from rfcheck.physics.domain import check_index, guard_public
+
+#: grid of reflection_band: at most this many points; its edges: at most this many halvings
+#: (64 halve any float interval to its last bit)
+MAX_BAND_POINTS = 1_000_001
+MAX_BISECTIONS = 64
 
 __all__ = [
     "Layer",
@@ -357,7 +363,9 @@ def reflection_band(layers: Sequence[Layer], f_centre: float, limit: float,
     """
     if not 0.0 < span < 1.0:
         raise ValueError(f"span must lie in (0, 1), got {span}")
-    points = max(int(points) | 1, 3)  # odd: the centre is a grid point
+    if not 0.0 < rtol < 1.0:
+        raise ValueError(f"rtol must lie in (0, 1), got {rtol}")
+    points = max(check_index("points", points, 3, MAX_BAND_POINTS) | 1, 3)  # odd: centre on grid
     grid = f_centre * np.linspace(1.0 - span, 1.0 + span, points)
     ic = points // 2
     grid[ic] = f_centre
@@ -380,7 +388,7 @@ def reflection_band(layers: Sequence[Layer], f_centre: float, limit: float,
                         grid[-1] if high_open else grid[ic + bad_hi[0]]])
     if not (low_open and high_open):
         steps = int(math.ceil(math.log2(max(grid[1] - grid[0], 1e-300) / (rtol * f_centre)))) + 1
-        for _ in range(max(steps, 1)):
+        for _ in range(min(max(steps, 1), MAX_BISECTIONS)):
             mid = 0.5 * (inside + outside)
             good = below(mid)
             inside = np.where(good, mid, inside)
@@ -448,3 +456,6 @@ def material_layer(name: str, thickness: ArrayLike) -> Layer:
         raise ValueError(f"unknown window material {name!r}; valid names: {', '.join(table)}")
     row = table[name]
     return Layer(float(row["eps_r"]), float(row["tan_delta"]), thickness)
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

@@ -22,6 +22,7 @@ from numpy.typing import ArrayLike, NDArray
 
 from rfcheck.physics.constants import C, TWO_PI
 from rfcheck.physics.frequencies import critical_density, electron_cyclotron_frequency
+from rfcheck.physics.domain import guard_public
 
 __all__ = [
     "OXWindow",
@@ -176,3 +177,6 @@ def surface_wave_density(f: ArrayLike, eps_d: ArrayLike) -> NDArray:
         Relative permittivity of the dielectric wall.
     """
     return critical_density(f) * (1.0 + np.asarray(eps_d, float))
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

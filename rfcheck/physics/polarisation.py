@@ -56,6 +56,7 @@ import numpy as np
 
 from rfcheck.physics.coldplasma import n2_branch, stix
 from rfcheck.physics.frequencies import critical_density
+from rfcheck.physics.domain import guard_public
 
 __all__ = ["WavePolarisations", "PARTNER", "characteristic_polarisations", "launched_jones",
            "mode_fractions"]
@@ -183,3 +184,6 @@ def mode_fractions(waves: WavePolarisations, jones: np.ndarray) -> dict[str, flo
         out[label] = float(abs(np.vdot(u, v)) ** 2)
     total = sum(out.values())
     return {k: v / total for k, v in out.items()}
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

@@ -20,6 +20,7 @@ from numpy.typing import ArrayLike, NDArray
 
 from rfcheck.physics.constants import C, TWO_PI
 from rfcheck.physics.waveguide import circular_te_cutoff, te_wave_impedance
+from rfcheck.physics.domain import guard_public
 
 __all__ = [
     "AIR_BREAKDOWN_FIELD",
@@ -250,3 +251,6 @@ def disc_temperature_rise(absorbed: ArrayLike, conductivity: ArrayLike, thicknes
     """
     return (np.asarray(absorbed, dtype=float)
             / (4.0 * math.pi * np.asarray(conductivity, dtype=float) * np.asarray(thickness, dtype=float)))
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

@@ -31,6 +31,7 @@ from typing import Any, NamedTuple
 from scipy import constants as _codata
 
 from rfcheck.physics.constants import AMU, E_CHARGE, M_E, M_P
+from rfcheck.physics.domain import guard_public
 
 __all__ = [
     "Species",
@@ -260,3 +261,6 @@ def _ion_mixture(items: tuple) -> tuple[tuple[Species, float], ...]:
     if abs(total - 1.0) > 1e-6:
         raise ValueError(f"ion fractions must sum to 1 (share of the positive charge), got {total}")
     return tuple((sp, frac / total) for sp, frac in entries)
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

@@ -27,6 +27,10 @@ import numpy as np
 from numpy.typing import ArrayLike, NDArray
 
 from rfcheck.physics.constants import C, ETA0, TWO_PI
+from rfcheck.physics.domain import check_index, guard_public
+
+#: largest mode index (and mode count) the mode functions accept (ValueError above)
+MAX_MODE_INDEX = 50
 
 __all__ = [
     "RECOMMENDED_BAND_FACTORS",
@@ -92,6 +96,7 @@ def rectangular_mode_cutoffs(a: float, b: float, count: int = 6) -> list[tuple[s
     TE_mn for m + n ≥ 1 and TM_mn for m, n ≥ 1 (Pozar §3.3). Degenerate modes are listed
     separately (TE first).
     """
+    count = check_index("count", count, 1, MAX_MODE_INDEX)
     span = count + 2
     modes = []
     for m in range(span):
@@ -114,7 +119,7 @@ def circular_te_cutoff(radius: ArrayLike, m: int, n: int, eps_r: float = 1.0) ->
     """
     from scipy.special import jnp_zeros
 
-    p = jnp_zeros(m, n)[-1]
+    p = jnp_zeros(check_index("m", m, 0, MAX_MODE_INDEX), check_index("n", n, 1, MAX_MODE_INDEX))[-1]
     return p * C / (TWO_PI * np.asarray(radius, dtype=float) * math.sqrt(eps_r))
 
 
@@ -126,7 +131,7 @@ def circular_tm_cutoff(radius: ArrayLike, m: int, n: int, eps_r: float = 1.0) ->
     """
     from scipy.special import jn_zeros
 
-    p = jn_zeros(m, n)[-1]
+    p = jn_zeros(check_index("m", m, 0, MAX_MODE_INDEX), check_index("n", n, 1, MAX_MODE_INDEX))[-1]
     return p * C / (TWO_PI * np.asarray(radius, dtype=float) * math.sqrt(eps_r))
 
 
@@ -139,6 +144,7 @@ def circular_mode_cutoffs(radius: float, count: int = 6) -> list[tuple[str, floa
     from scipy.special import jn_zeros, jnp_zeros
 
     modes = []
+    count = check_index("count", count, 1, MAX_MODE_INDEX)
     for m in range(count + 1):
         for n, p in enumerate(jnp_zeros(m, count), start=1):
             modes.append((p, 0, f"TE{m}{n}"))
@@ -436,3 +442,6 @@ def line_from_name(name: str) -> Line:
     choices = ", ".join(line_names())
     raise ValueError(f"unknown line {name!r}; valid names: {choices}; IEC designations "
                      f"(e.g. R26); or 'circular:<diameter> mm'")
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

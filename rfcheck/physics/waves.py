@@ -27,6 +27,7 @@ from numpy.typing import ArrayLike, NDArray
 
 from rfcheck.physics.constants import C, E_CHARGE, EPS0, M_E, TWO_PI
 from rfcheck.physics.species import Species, as_species
+from rfcheck.physics.domain import guard_public
 
 __all__ = [
     "thermal_speed",
@@ -234,3 +235,6 @@ def upper_hybrid_oscillation_frequency(
     w_ce = E_CHARGE * np.abs(_f(b)) / M_E
     v2 = E_CHARGE * _f(t_e) / M_E
     return np.sqrt(_WPE2_PER_N * _f(n_e) + w_ce**2 + gamma * _f(k) ** 2 * v2) / TWO_PI
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

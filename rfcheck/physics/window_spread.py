@@ -67,6 +67,10 @@ from numpy.typing import ArrayLike, NDArray
 
 from rfcheck.physics.multilayer import (Embedding, Layer, embedding_ports, layer_matrix,
                                        reflection_band, scattering, window_response)
+from rfcheck.physics.domain import check_index, guard_public
+
+#: largest budget a caller may give worst_over_spread (combinations)
+MAX_BUDGET = 1_000_000
 
 __all__ = [
     "MAX_COMBINATIONS",
@@ -442,7 +446,8 @@ def worst_over_spread(f: ArrayLike, spreads: Sequence[LayerSpread],
             spreads = [LayerSpread(*((v[1],) * 3 for v in s)) for s in spreads]
     box = _Box(spreads)
     f = np.atleast_1d(np.asarray(f, dtype=float)).ravel()
-    search = _Search(box, f, embedding, quantity, max(int(budget), 2 * box.m + 1))
+    budget = check_index("budget", budget, 1, MAX_BUDGET)
+    search = _Search(box, f, embedding, quantity, max(budget, 2 * box.m + 1))
     m = box.m
     centre = np.zeros((1, m))
     sig_c = search.signal(centre)
@@ -559,3 +564,6 @@ def band_over_spread(f_centre: float, limit: float, spreads: Sequence[LayerSprea
         binding.append(box.point(values[int(np.argmax(np.abs(g[:, 0])))]))
     return SpreadBand(b.low, b.high, b.low_open, b.high_open, binding[0], binding[1],
                       len(rows), evaluations, converged)
+
+
+guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

@@ -26,6 +26,8 @@ VERDICT_TEXT = {
     "pass": "All selected requirements are met over the declared envelope.",
     "warn": "Requirements are met, with warnings that need a reviewer's attention.",
     "fail": "One or more requirements are not met (or could not be evaluated) over the declared envelope.",
+    "not-evaluated": "The design was not reviewed: no requirement was evaluated over the declared "
+                     "envelope (see the reasons below). This is not a pass.",
 }
 
 
@@ -113,6 +115,9 @@ def build(run, figures: list[dict] | None = None) -> dict:
                    "lab": m.source.lab if m else "", "description": m.source.description if m else ""},
         "verdict": run.verdict,
         "verdict_text": VERDICT_TEXT[run.verdict],
+        "verdict_label": run.verdict_label,
+        "verdict_reasons": list(run.verdict_reasons),
+        "unused_waivers": [dict(u) for u in run.unused_waivers],
         "counts": run.counts(),
         "fingerprint": {"spec_file": run.spec_file, "spec_sha256": run.spec_sha256,
                         "policy_name": run.policy_name, "policy_sha256": run.policy_sha256,

@@ -16,7 +16,7 @@ from rfcheck.physics.frequencies import ecr_field
 from .context import Context
 from .parts import mode_content
 from .path import LaunchPath, collision_frequency, launch_path, profile_shape
-from .registry import Option, rule
+from .registry import Option, Range, rule
 from .resonance import ECR_HARMONIC
 
 _RESONANT = ("ecr", "ecr-harmonic-2", "uhr")
@@ -118,7 +118,8 @@ def _cold(path: LaunchPath, resonant: bool = True):
               "second harmonic) is reported against a planning threshold.",
       options={"min_absorbed_fraction": Option(
           "ratio", "single-pass absorbed fraction below which the design relies on multi-pass "
-                   "absorption (warning)")},
+                   "absorption (warning)",
+          valid=Range(0.0, 1.0, "a fraction of the launched power", "%"))},
       applies="feeds with absorption = ecr or ecr-harmonic-2")
 def single_pass(ctx: Context, *, min_absorbed_fraction: float) -> Iterator[Finding]:
     """What it checks
@@ -216,7 +217,10 @@ def _share(x: float) -> str:
 @rule("absorption.collisional-regime", severity=Severity.WARNING,
       summary="Electron collisions stay weak against the wave frequency (ν/ω) along the launch "
               "path, so the resonance is not collision-broadened.",
-      options={"max_nu_over_omega": Option("ratio", "highest allowed ν/ω along the path")},
+      options={"max_nu_over_omega": Option("ratio", "highest allowed ν/ω along the path",
+          valid=Range(0.0, 1.0,
+                      "nu/omega >= 1 is no longer resonant heating (the resonance is smeared over"
+                      " the whole plasma); a limit of 0 no collisional plasma meets", "1", low_open=True))},
       applies="feeds with absorption = ecr, ecr-harmonic-2 or uhr")
 def collisional_regime_rule(ctx: Context, *, max_nu_over_omega: float) -> Iterator[Finding]:
     """What it checks

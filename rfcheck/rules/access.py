@@ -27,7 +27,7 @@ from rfcheck.units import format_si
 from .context import Context
 from .parts import mode_content, part_subject
 from .path import NEAR_FIELD, Corner, LaunchPath, launch_path
-from .registry import Option, rule
+from .registry import Option, Range, rule
 from .resonance import ECR_HARMONIC
 from .window_data import resolve_material
 
@@ -68,12 +68,17 @@ def _z_text(path: LaunchPath, s: float) -> str:
       options={
           "min_tunnelling_factor": Option(
               "ratio", "smallest tunnelling factor exp(−2∫κ dz) counted as access (fail below: "
-                       "blocked)"),
+                       "blocked)",
+          valid=Range(0.0, 1.0,
+                      "a fraction of the power; a limit of 0 would count a layer that passes "
+                      "nothing as access", "%", low_open=True)),
           "warn_tunnelling_factor": Option(
-              "ratio", "tunnelling factor below which access only by tunnelling is a warning"),
+              "ratio", "tunnelling factor below which access only by tunnelling is a warning",
+          valid=Range(0.0, 1.0, "a fraction of the power", "%", low_open=True)),
       },
       applies="every feed except inductive and helicon coupling (near field) and lower-hybrid "
-              "feeds (N∥ accessibility not modelled)")
+              "feeds (N∥ accessibility not modelled)",
+      ordered=(("min_tunnelling_factor", "warn_tunnelling_factor", "the failing threshold lies below the warning one"),))
 def reaches_resonance(ctx: Context, *, min_tunnelling_factor: float,
                       warn_tunnelling_factor: float) -> Iterator[Finding]:
     """What it checks
@@ -319,7 +324,10 @@ def _window_permittivity(ctx: Context, feed) -> tuple[float | None, str]:
               "delivers the power.",
       options={"min_route_efficiency": Option(
           "ratio", "smallest fraction of the power an overdense route must deliver "
-                   "(tunnelling factor or O–X conversion efficiency)")},
+                   "(tunnelling factor or O–X conversion efficiency)",
+          valid=Range(0.0, 1.0,
+                      "a fraction of the power; a limit of 0 would accept a route that delivers "
+                      "nothing", "%", low_open=True))},
       applies="every feed except inductive and helicon coupling and lower-hybrid feeds, at the "
               "envelope corners where the peak density exceeds n_c")
 def overdense_route(ctx: Context, *, min_route_efficiency: float) -> Iterator[Finding]:

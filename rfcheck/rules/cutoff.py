@@ -13,7 +13,7 @@ from rfcheck.units import format_si
 from .context import Context
 from .parts import ModeContent, mode_content, part_subject
 from .path import NEAR_FIELD, launch_path
-from .registry import Option, rule
+from .registry import Option, Range, rule
 
 #: parts whose cutoff this rule bounds: the O mode (P = 0, X = 1) and the L wave (L = 0,
 #: X = 1 + Y); the R and X waves reach their resonance from the high-field side at any
@@ -59,11 +59,17 @@ def _routes(ctx: Context, feed, mode: str, limit: float) -> tuple[bool, str]:
       summary="The density stays below the cutoff of each part of the launched power that has "
               "one: the O mode (n_c) and the L wave (n_c(1 + Y)).",
       options={
-          "max_fraction": Option("ratio", "highest allowed n_e / n_cut along the path (fail above)"),
-          "warn_fraction": Option("ratio", "n_e / n_cut above which the finding is a warning"),
+          "max_fraction": Option("ratio", "highest allowed n_e / n_cut along the path (fail above)",
+          valid=Range(0.0, 1.0,
+                      "n_e/n_cut above 100 % is beyond the cutoff: the wave is reflected, so a "
+                      "larger limit would pass a cut-off feed", "%", low_open=True)),
+          "warn_fraction": Option("ratio", "n_e / n_cut above which the finding is a warning",
+          valid=Range(0.0, 1.0,
+                      "n_e/n_cut above 100 % is beyond the cutoff itself", "%", low_open=True)),
       },
       applies="the O and L parts of every feed's launched power, and unmagnetised launches; not "
-              "inductive and helicon coupling (near-field, overdense by design)")
+              "inductive and helicon coupling (near-field, overdense by design)",
+      ordered=(("warn_fraction", "max_fraction", "the warning threshold lies below the failing one"),))
 def o_mode_cutoff(ctx: Context, *, max_fraction: float, warn_fraction: float) -> Iterator[Finding]:
     """What it checks
     Each part of the feed's launched power (its split into the plasma's characteristic

@@ -13,7 +13,7 @@ from rfcheck.units import format_si
 
 from .context import Context
 from .exposure_data import leak_analysis, path_attenuation_db, path_cutoff
-from .registry import Option, rule
+from .registry import Option, Range, rule
 
 SUBJECT = "occupied distance"
 
@@ -33,8 +33,13 @@ def _mm(x: float) -> str:
 @rule("exposure.leak-level", severity=Severity.ERROR,
       summary="The leak estimate at the occupied distance, summed over the feeds, stays below "
               "the reference levels of the named exposure table.",
-      options={"max_fraction": Option("ratio", "highest allowed exposure ratio Σ S_i/S_RL(f_i)"),
-               "leak_directivity": Option("ratio", "directivity of a small leak in a wall")},
+      options={"max_fraction": Option("ratio", "highest allowed exposure ratio Σ S_i/S_RL(f_i)",
+          valid=Range(0.0, 1.0,
+                      "an exposure ratio above 1 exceeds the reference level of the table itself", "%", low_open=True)),
+               "leak_directivity": Option("ratio", "directivity of a small leak in a wall",
+          valid=Range(1.0, 1000.0,
+                      "no radiator has a directivity below 1 (isotropic); 1000 (30 dBi) is a "
+                      "large aperture antenna, far beyond any leak", "1"))},
       applies="sources with an [exposure] section giving a leak (survey or derived)")
 def leak_level(ctx: Context, *, max_fraction: float, leak_directivity: float) -> Iterator[Finding]:
     """What it checks
@@ -144,8 +149,14 @@ def leak_level(ctx: Context, *, max_fraction: float, leak_directivity: float) ->
 @rule("exposure.aperture-attenuation", severity=Severity.ERROR,
       summary="Every vent, viewport tube or perforated plate attenuates each feed below cutoff "
               "by at least what the reference level at the occupied distance needs.",
-      options={"min_margin": Option("ratio", "attenuation required beyond the need (dB)"),
-               "leak_directivity": Option("ratio", "directivity of a small leak in a wall")},
+      options={"min_margin": Option("ratio", "attenuation required beyond the need (dB)",
+          valid=Range(1.0, 1e10,
+                      "below 0 dB the aperture would be allowed to leak more than the reference "
+                      "level needs; 100 dB is beyond what a shielding measurement resolves", "dB")),
+               "leak_directivity": Option("ratio", "directivity of a small leak in a wall",
+          valid=Range(1.0, 1000.0,
+                      "no radiator has a directivity below 1 (isotropic); 1000 (30 dBi) is a "
+                      "large aperture antenna, far beyond any leak", "1"))},
       applies="derived leaks with aperture paths")
 def aperture_attenuation(ctx: Context, *, min_margin: float,
                          leak_directivity: float) -> Iterator[Finding]:

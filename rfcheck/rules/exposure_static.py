@@ -9,7 +9,7 @@ from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.model import UniformField
 
 from .context import Context
-from .registry import Option, rule
+from .registry import Option, Range, rule
 
 __all__ = ["static_field_line", "fringe_lines", "LEVEL_NAMES"]
 
@@ -52,8 +52,14 @@ def _z(c, zc: float, sign: int) -> str:
 @rule("exposure.static-field-line", severity=Severity.ERROR,
       summary="The static field falls to the implant-warning and projectile levels inside the "
               "declared controlled area.",
-      options={"implant_level": Option("magnetic_field", "|B| of the implant-warning line"),
-               "projectile_level": Option("magnetic_field", "|B| of the projectile line")},
+      options={"implant_level": Option("magnetic_field", "|B| of the implant-warning line",
+          valid=Range(0.0, 5e-4,
+                      "a site may draw the implant line lower, not above the 0.5 mT action level "
+                      "for active implanted devices (Directive 2013/35/EU, Annex II)", "mT", low_open=True)),
+               "projectile_level": Option("magnetic_field", "|B| of the projectile line",
+          valid=Range(0.0, 3e-3,
+                      "a site may draw the projectile line lower, not above the 3 mT action level"
+                      " (Directive 2013/35/EU, Annex II)", "mT", low_open=True))},
       applies="every source with a magnet of finite extent (not a uniform field)")
 def static_field_line(ctx: Context, *, implant_level: float,
                       projectile_level: float) -> Iterator[Finding]:

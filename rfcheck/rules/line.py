@@ -16,7 +16,7 @@ from rfcheck.physics.waveguide import line_from_name
 from .context import Context
 from .load import IGNITION, RUNNING, cold_gamma, running_gamma
 from .path import NEAR_FIELD
-from .registry import Option, rule
+from .registry import Option, Range, rule
 
 
 @rule("line.waveguide-band", severity=Severity.ERROR,
@@ -116,7 +116,11 @@ def _watts(x: float) -> str:
               "running and of the ignition state, stays under the air breakdown field divided "
               "by a safety factor.",
       options={"safety_factor": Option("ratio", "factor (in field) between the breakdown "
-                                                "field of air at 1 atm and the allowed peak field")},
+                                                "field of air at 1 atm and the allowed peak field",
+          valid=Range(1.0, 10.0,
+                      "below 1 the allowed peak field would exceed the breakdown field itself; "
+                      "practical ratings stay within 2 to 4 in field (1/4 to 1/16 in power), and "
+                      "10 (1/100 in power) is beyond any", "1"))},
       applies="feeds on rectangular (TE10) and circular (TE11) guide; not coaxial or free-space "
               "feeds")
 def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:

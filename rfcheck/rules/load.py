@@ -16,7 +16,7 @@ from rfcheck.units import format_fraction as _pct
 from .context import Context
 from .parts import ModeContent, mode_content, worst_split
 from .path import NEAR_FIELD, Corner, launch_path
-from .registry import Option, rule
+from .registry import Option, Range, rule
 from .window_data import window_analysis
 
 __all__ = ["PlasmaReturn", "plasma_return", "running_gamma", "cold_gamma", "RUNNING", "IGNITION"]
@@ -102,7 +102,9 @@ def _model_note(ctx: Context, feed: Feed) -> str:
       summary="The fraction of the launched power the plasma returns towards the launcher (1-D "
               "full wave per part of the power, far end included) stays under the limit.",
       options={"max_reflected_fraction": Option(
-          "ratio", "highest allowed fraction |Γ_p|² of the launched power the plasma returns")},
+          "ratio", "highest allowed fraction |Γ_p|² of the launched power the plasma returns",
+          valid=Range(0.0, 1.0,
+                      "a fraction of the launched power; a limit of 0 no plasma meets", "%", low_open=True))},
       applies="every feed except inductive and helicon coupling (near field)")
 def plasma_reflection(ctx: Context, *, max_reflected_fraction: float) -> Iterator[Finding]:
     """What it checks
@@ -210,7 +212,10 @@ def cold_gamma(feed: Feed) -> tuple[float, str]:
       summary="Running state: window and plasma reflection together, as a bounded worst case, "
               "stay within the reflected power the generator tolerates.",
       options={"max_fraction": Option(
-          "ratio", "allowed share of the feed's max_reflected_power")},
+          "ratio", "allowed share of the feed's max_reflected_power",
+          valid=Range(0.0, 1.0,
+                      "a share of the specification's own rating: above 100 % would exceed what "
+                      "the generator or circulator tolerates", "%", low_open=True))},
       applies="feeds that give max_reflected_power, except inductive and helicon coupling")
 def reflected_power(ctx: Context, *, max_fraction: float) -> Iterator[Finding]:
     """What it checks
@@ -290,7 +295,10 @@ def reflected_power(ctx: Context, *, max_fraction: float) -> Iterator[Finding]:
       summary="Ignition state: the power the unlit cavity reflects stays within the generator's "
               "or circulator load's rating for the time it lasts.",
       options={"max_fraction": Option(
-          "ratio", "allowed share of the applicable reflected-power rating")},
+          "ratio", "allowed share of the applicable reflected-power rating",
+          valid=Range(0.0, 1.0,
+                      "a share of the specification's own rating: above 100 % would exceed what "
+                      "the generator or circulator tolerates", "%", low_open=True))},
       applies="every feed that gives a reflected-power rating (continuous or time-limited)")
 def ignition_reflection(ctx: Context, *, max_fraction: float) -> Iterator[Finding]:
     """What it checks

@@ -16,7 +16,7 @@ from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.physics.frequencies import ecr_field
 
 from .context import Context
-from .registry import Option, rule
+from .registry import Option, Range, rule
 from .resonance import ECR_HARMONIC
 
 #: samples along the launch path (launcher to the far end of the chamber)
@@ -58,13 +58,28 @@ def _scale_index(ctx: Context, where: dict) -> int:
       summary="Injection, extraction, radial and minimum field of a minimum-B trap over B_ECR "
               "lie in the published semi-empirical ranges.",
       options={
-          "injection_min": Option("ratio", "lowest B_inj/B_ECR"),
-          "extraction_min": Option("ratio", "lowest B_ext/B_ECR"),
-          "radial_min": Option("ratio", "lowest B_rad/B_ECR (at the chamber wall)"),
-          "bmin_low": Option("ratio", "lowest B_min/B_ECR"),
-          "bmin_high": Option("ratio", "highest B_min/B_ECR"),
+          "injection_min": Option("ratio", "lowest B_inj/B_ECR",
+          valid=Range(1.0, 10.0,
+                      "the ratio must exceed 1 for the resonance to be closed at the injection "
+                      "side; published designs lie between 2 and 5 (Hitz et al. 2002), 10 is "
+                      "beyond any", "1", low_open=True)),
+          "extraction_min": Option("ratio", "lowest B_ext/B_ECR",
+          valid=Range(1.0, 10.0,
+                      "the ratio must exceed 1 for the resonance to be closed at the extraction "
+                      "side; 10 is beyond any published design", "1", low_open=True)),
+          "radial_min": Option("ratio", "lowest B_rad/B_ECR (at the chamber wall)",
+          valid=Range(1.0, 10.0,
+                      "the ratio must exceed 1 for the resonance to lie inside the chamber wall; "
+                      "10 is beyond any published design", "1", low_open=True)),
+          "bmin_low": Option("ratio", "lowest B_min/B_ECR",
+          valid=Range(0.0, 1.0,
+                      "B_min must lie below B_ECR for a resonance surface to exist", "1", low_open=True, high_open=True)),
+          "bmin_high": Option("ratio", "highest B_min/B_ECR",
+          valid=Range(0.0, 1.0,
+                      "B_min must lie below B_ECR for a resonance surface to exist", "1", low_open=True, high_open=True)),
       },
-      applies="minimum-B traps ([magnet] trap = \"minimum-b\"), feeds with absorption = ecr")
+      applies="minimum-B traps ([magnet] trap = \"minimum-b\"), feeds with absorption = ecr",
+      ordered=(("bmin_low", "bmin_high", "the useful B_min range runs from its low end to its high end"),))
 def min_b_ratios(ctx: Context, *, injection_min: float, extraction_min: float,
                  radial_min: float, bmin_low: float, bmin_high: float) -> Iterator[Finding]:
     """What it checks
@@ -224,9 +239,15 @@ def _descent(b: np.ndarray, b_ecr: float) -> tuple[int | None, float]:
       summary="An R wave launched along B starts above B_ECR by a margin and meets the "
               "resonance on a falling field (magnetic beach).",
       options={
-          "min_launch_margin": Option("ratio", "lowest (B_launch − B_ECR) / B_ECR"),
+          "min_launch_margin": Option("ratio", "lowest (B_launch − B_ECR) / B_ECR",
+          valid=Range(0.0, 1.0,
+                      "below 0 the launch would be on the low-field side; a launch field more "
+                      "than twice B_ECR is no requirement of a high-field launch", "%")),
           "max_field_dip": Option("ratio", "largest dip of |B| (a fall and rise again) between "
-                                           "the launcher and the resonance, relative to B_ECR"),
+                                           "the launcher and the resonance, relative to B_ECR",
+          valid=Range(0.0, 1.0,
+                      "a dip is a fraction of B_ECR; a dip of B_ECR itself would bring the field "
+                      "to zero", "%", high_open=True)),
       },
       applies="feeds launched with mode = \"R\" and absorption = ecr or ecr-harmonic-2")
 def high_field_launch(ctx: Context, *, min_launch_margin: float,

@@ -10,7 +10,7 @@ from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.physics.frequencies import ecr_field
 
 from .context import Context
-from .registry import Option, rule
+from .registry import Option, Range, rule
 
 #: harmonic number of the electron-cyclotron resonance each absorption mechanism relies on
 ECR_HARMONIC = {"ecr": 1, "ecr-harmonic-2": 2}
@@ -19,7 +19,10 @@ ECR_HARMONIC = {"ecr": 1, "ecr-harmonic-2": 2}
 @rule("resonance.ecr-in-chamber", severity=Severity.ERROR,
       summary="The ECR field of each ECR-heated feed is crossed on the axis inside the chamber.",
       options={"min_field_margin": Option(
-          "ratio", "how far inside the on-axis field range B_res must lie, relative to B_res")},
+          "ratio", "how far inside the on-axis field range B_res must lie, relative to B_res",
+          valid=Range(0.0, 1.0,
+                      "a negative margin would accept a resonance field outside the field range; "
+                      "100 % of B_res is beyond any field range", "%", high_open=True))},
       applies="feeds with absorption = ecr or ecr-harmonic-2")
 def ecr_in_chamber(ctx: Context, *, min_field_margin: float) -> Iterator[Finding]:
     """What it checks
@@ -145,7 +148,10 @@ def _clearance_objects(ctx: Context, feed) -> list[tuple[str, float]]:
               "the launcher and each chamber landmark.",
       options={"min_distance": Option(
           "length", "smallest allowed on-axis distance between a resonance crossing and a "
-                    "window, the feed's launcher or a landmark")},
+                    "window, the feed's launcher or a landmark",
+          valid=Range(0.0, 10.0,
+                      "a negative distance would accept a resonance on a window or electrode; 10 "
+                      "m is beyond any source chamber", "mm"))},
       applies="feeds with absorption = ecr or ecr-harmonic-2")
 def ecr_clearance(ctx: Context, *, min_distance: float) -> Iterator[Finding]:
     """What it checks
@@ -236,7 +242,10 @@ def ecr_clearance(ctx: Context, *, min_distance: float) -> Iterator[Finding]:
               "closed |B| over the envelope.",
       options={"min_field_margin": Option(
           "ratio", "how far B_res must lie above B_min and below the last closed |B|, "
-                   "relative to B_res")},
+                   "relative to B_res",
+          valid=Range(0.0, 1.0,
+                      "a negative margin would accept a resonance field outside the field range; "
+                      "100 % of B_res is beyond any field range", "%", high_open=True))},
       applies="minimum-B traps ([magnet] trap = \"minimum-b\"), feeds with absorption = ecr "
               "or ecr-harmonic-2")
 def ecr_closed(ctx: Context, *, min_field_margin: float) -> Iterator[Finding]:
@@ -337,7 +346,10 @@ def _intended_resonance(ctx: Context, feed):
               "the axis inside the chamber.",
       options={"min_field_margin": Option(
           "ratio", "how far inside the on-axis field range the resonance field must lie, "
-                   "relative to it")},
+                   "relative to it",
+          valid=Range(0.0, 1.0,
+                      "a negative margin would accept a resonance field outside the field range; "
+                      "100 % of B_res is beyond any field range", "%", high_open=True))},
       applies="feeds with absorption = ecr-harmonic-2 (B_ECR/2) or icr (the ion-cyclotron "
               "field of the first ion species)")
 def harmonic_resonance(ctx: Context, *, min_field_margin: float) -> Iterator[Finding]:

@@ -15,7 +15,7 @@ from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.physics.rfpower import absorbed_power, reflected_power, return_loss_db, vswr
 
 from .context import Context
-from .registry import Option, rule
+from .registry import Option, Range, rule
 from rfcheck.physics.window_spread import SpreadWorst, StackPoint
 
 from .window_data import BAND_SPAN, WindowAnalysis, embedding_text, window_analysis
@@ -80,7 +80,10 @@ def _no_windows(ctx: Context, requirement: str) -> Iterator[Finding]:
       summary="Each window's worst reflection |Γ| over f ± tolerance, the thickness "
               "tolerance and the material spreads stays under the limit.",
       options={"max_gamma": Option("ratio", "highest allowed |Γ| of a window "
-                                            "(VSWR = (1 + |Γ|)/(1 − |Γ|))")},
+                                            "(VSWR = (1 + |Γ|)/(1 − |Γ|))",
+          valid=Range(0.0, 1.0,
+                      "|Gamma| of a passive window lies between 0 and 1; a limit of 1 (total "
+                      "reflection) would accept any window, 0 none", "1", low_open=True, high_open=True))},
       applies="every window, in the dominant mode of its feed's line (TE10/TE11 guide mode; "
               "plane wave at normal incidence for coaxial and free-space feeds)")
 def window_reflection(ctx: Context, *, max_gamma: float) -> Iterator[Finding]:
@@ -156,9 +159,16 @@ def window_reflection(ctx: Context, *, max_gamma: float) -> Iterator[Finding]:
       summary="The band where each window's |Γ| stays under the limit covers the feed's "
               "f ± tolerance with a frequency margin to spare.",
       options={
-          "max_gamma": Option("ratio", "|Γ| that bounds the window's reflection band"),
+          "max_gamma": Option("ratio", "|Γ| that bounds the window's reflection band",
+          valid=Range(0.0, 1.0,
+                      "|Gamma| of a passive window lies between 0 and 1; a limit of 1 (total "
+                      "reflection) would accept any window, 0 none", "1", low_open=True, high_open=True)),
           "min_margin": Option("ratio", "frequency margin required beyond f ± tolerance on "
-                                        "each side, as a fraction of the feed frequency"),
+                                        "each side, as a fraction of the feed frequency",
+          valid=Range(0.0, 0.5,
+                      "a fraction of the feed frequency beyond its tolerance; a negative margin "
+                      "would accept a band edge inside f +/- tolerance, 50 % is beyond any window"
+                      " band", "%")),
       },
       applies="every window, embedded as for window.reflection")
 def window_band(ctx: Context, *, max_gamma: float, min_margin: float) -> Iterator[Finding]:
@@ -249,7 +259,10 @@ def window_band(ctx: Context, *, max_gamma: float, min_margin: float) -> Iterato
       summary="Power absorbed in each window at the feed's average power stays under the "
               "window's rated absorbed power.",
       options={"max_fraction": Option("ratio", "highest allowed fraction of the window's "
-                                                "max_absorbed_power")},
+                                                "max_absorbed_power",
+          valid=Range(0.0, 1.0,
+                      "a share of the window's own rating (max_absorbed_power): above 100 % would"
+                      " exceed it", "%", low_open=True))},
       applies="windows with a max_absorbed_power")
 def window_absorbed_power(ctx: Context, *, max_fraction: float) -> Iterator[Finding]:
     """What it checks
