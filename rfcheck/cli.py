@@ -11,7 +11,6 @@ import enum
 import json
 import os
 import sys
-import tempfile
 from importlib import resources
 from pathlib import Path
 
@@ -25,42 +24,7 @@ class Exit(enum.IntEnum):
     INTERNAL = 3
 
 
-class UsageProblem(Exception):
-    """A command-line problem that is the user's to fix (exit code 2)."""
-
-
-def check_destination(path: Path) -> Path:
-    """Refuse an output path whose folder is missing or which is itself a folder (before work)."""
-    path = Path(path)
-    folder = path.parent if str(path.parent) else Path(".")
-    if not folder.is_dir():
-        raise UsageProblem(f"{path}: folder {folder} does not exist")
-    if path.is_dir():
-        raise UsageProblem(f"{path} is a folder; give a file name")
-    return folder
-
-
-def write_atomic(path: Path, data: bytes) -> None:
-    """Write `data` to `path` via a temporary file in the same folder and an atomic rename."""
-    path = Path(path)
-    folder = check_destination(path)
-    try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=folder)
-    except OSError as exc:
-        raise UsageProblem(f"{path}: cannot write in {folder}: {exc.strerror}") from None
-    try:
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(data)
-        umask = os.umask(0)
-        os.umask(umask)
-        os.chmod(tmp, path.stat().st_mode & 0o777 if path.exists() else 0o666 & ~umask)
-        os.replace(tmp, path)
-    except BaseException:
-        try:
-            os.unlink(tmp)
-        except FileNotFoundError:
-            pass
-        raise
+from rfcheck.outputs import UsageProblem, check_destination, write_atomic  # noqa: E402,F401
 
 
 def _examples_dir():
@@ -86,28 +50,44 @@ def _evaluate(spec: Path, policy_path: Path | None):
     return run(loaded, policy)
 
 
+def _targets(json_out: str | None, pdf_out: str | None) -> list:
+    out = []
+    if json_out is not None and json_out != "-":
+        out.append(("--json", Path(json_out)))
+    if pdf_out is not None:
+        out.append(("--pdf", Path(pdf_out)))
+    return out
+
+
 def _emit(result, json_out: str | None, pdf_out: str | None, quiet_table: bool) -> None:
+    from rfcheck.outputs import commit
+    from rfcheck.text import for_terminal
     from rfcheck.views import text_table
 
+    items = []
+    payload = None
     if json_out is not None:
         payload = (json.dumps(result.to_json(), indent=2, allow_nan=False) + "\n").encode()
-        if json_out == "-":
-            sys.stdout.write(payload.decode())
-            sys.stdout.flush()
-        else:
-            write_atomic(Path(json_out), payload)
+        if json_out != "-":
+            items.append(("--json", Path(json_out), payload))
     if pdf_out is not None:
         from rfcheck.report.render import render_pdf
 
-        write_atomic(Path(pdf_out), render_pdf(result))
+        items.append(("--pdf", Path(pdf_out), render_pdf(result)))
+    if items:
+        commit(items)
+    if json_out == "-":
+        sys.stdout.write(payload.decode())
+        sys.stdout.flush()
     if not (json_out == "-" or quiet_table):
         click.echo(text_table(result, colour=sys.stdout.isatty()))
     elif json_out == "-":
-        click.echo(f"verdict: {result.verdict}", err=True)
+        click.echo(f"verdict: {for_terminal(str(result.verdict))}", err=True)
 
 
 def _exit_for(result, strict: bool) -> Exit:
-    if result.verdict == "fail" or (strict and result.verdict == "warn"):
+    fails = getattr(result, "exit_fails", result.verdict == "fail")
+    if fails or (strict and result.verdict == "warn"):
         return Exit.FAIL
     return Exit.PASS
 
@@ -122,9 +102,9 @@ def _exit_for(result, strict: bool) -> Exit:
 def check(spec: Path, policy_path: Path | None, json_out: str | None, pdf_out: str | None,
           strict: bool) -> None:
     """Check a source specification SPEC against the rule catalogue."""
-    for out in (json_out if json_out != "-" else None, pdf_out):
-        if out is not None:
-            check_destination(Path(out))
+    from rfcheck.outputs import plan
+
+    plan(_targets(json_out, pdf_out))
     result = _evaluate(spec, policy_path)
     _emit(result, json_out, pdf_out, quiet_table=False)
     raise SystemExit(_exit_for(result, strict))
@@ -133,20 +113,36 @@ def check(spec: Path, policy_path: Path | None, json_out: str | None, pdf_out: s
 @cli.command()
 @click.option("--out", "out_dir", type=click.Path(path_type=Path), default=Path("rfcheck-demo"),
               show_default=True, help="Folder for the example spec, its JSON and PDF report.")
-def demo(out_dir: Path) -> None:
-    """Write the bundled example source, check it and render its PDF review report."""
-    out_dir.mkdir(parents=True, exist_ok=True)
+@click.option("--force", is_flag=True, help="Overwrite files of an earlier demo in the folder.")
+def demo(out_dir: Path, force: bool) -> None:
+    """Write the bundled example source, check it and render its PDF review report.
+
+    Never overwrites an existing file unless --force is given.
+    """
+    from rfcheck.outputs import commit, plan
+
+    if out_dir.exists() and not out_dir.is_dir():
+        raise UsageProblem(f"--out {out_dir} is not a folder")
     examples = _examples_dir()
     spec_path = out_dir / DEMO_SPEC
-    for item in examples.iterdir():
-        if item.name == DEMO_SPEC or item.name.endswith(".csv"):
-            write_atomic(out_dir / item.name, item.read_bytes())
-    result = _evaluate(spec_path, None)
+    inputs = [(out_dir / item.name, item) for item in sorted(examples.iterdir(), key=lambda i: i.name)
+              if item.name == DEMO_SPEC or item.name.endswith(".csv")]
     pdf = out_dir / (spec_path.stem + ".pdf")
     js = out_dir / (spec_path.stem + ".json")
+    every = [p for p, _ in inputs] + [js, pdf]
+    if not force:
+        existing = [str(p) for p in every if os.path.lexists(p)]
+        if existing:
+            raise UsageProblem("these files exist: " + ", ".join(existing)
+                               + "; use --force to overwrite them or choose another --out "
+                                 "folder (nothing was written)")
+    out_dir.mkdir(parents=True, exist_ok=True)
+    plan([(None, p) for p in every])
+    commit([(None, p, item.read_bytes()) for p, item in inputs])
+    result = _evaluate(spec_path, None)
     _emit(result, str(js), str(pdf), quiet_table=False)
     click.echo(f"wrote {spec_path}, {js} and {pdf}")
-    raise SystemExit(Exit.PASS if result.verdict != "fail" else Exit.FAIL)
+    raise SystemExit(_exit_for(result, False))
 
 
 @cli.command(name="rules")
@@ -208,9 +204,33 @@ def schema() -> None:
     click.echo(json.dumps(json_schema(), indent=2))
 
 
+#: internal numerical warnings captured in the last :func:`main` call (never printed)
+last_warning_count = 0
+
+
 def main(argv: list[str] | None = None) -> int:
-    """Entry point: map every outcome to an exit code, once."""
+    """Entry point: map every outcome to an exit code, once.
+
+    Python warnings (e.g. NumPy RuntimeWarnings) raised during the command are captured and
+    counted in :data:`last_warning_count`, never printed; with RFCHECK_DEBUG set one line
+    says how many occurred.
+    """
+    import warnings
+
+    global last_warning_count
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        code = _main(argv)
+    last_warning_count = len(caught)
+    if caught and os.environ.get("RFCHECK_DEBUG"):
+        click.echo(f"debug: {len(caught)} internal numerical warning(s) occurred "
+                   f"(first: {caught[0].category.__name__})", err=True)
+    return code
+
+
+def _main(argv: list[str] | None) -> int:
     from rfcheck.spec import InputError
+    from rfcheck.text import for_terminal
 
     try:
         cli.main(args=argv, prog_name="rfcheck", standalone_mode=False)
@@ -219,25 +239,25 @@ def main(argv: list[str] | None = None) -> int:
         return code
     except InputError as exc:
         for p in exc.problems:
-            click.echo(f"error: {p}", err=True)
+            click.echo(f"error: {for_terminal(str(p))}", err=True)
         n = len(exc.problems)
         click.echo(f"{n} problem{'s' if n != 1 else ''} in the input; nothing was written.", err=True)
         return Exit.BAD_INPUT
     except UsageProblem as exc:
-        click.echo(f"error: {exc}", err=True)
+        click.echo(f"error: {for_terminal(str(exc))}", err=True)
         return Exit.BAD_INPUT
     except click.exceptions.Abort:
         click.echo("aborted", err=True)
         return Exit.BAD_INPUT
     except click.ClickException as exc:  # usage errors: unknown option, missing argument
-        exc.show()
+        click.echo(for_terminal(f"error: {exc.format_message()}"), err=True)
         return Exit.BAD_INPUT
     except KeyboardInterrupt:
         return 130
     except Exception as exc:  # noqa: BLE001 - the one place unexpected failures are mapped
         import traceback
 
-        click.echo(f"internal error: {type(exc).__name__}: {exc}", err=True)
+        click.echo(for_terminal(f"internal error: {type(exc).__name__}: {exc}"), err=True)
         if os.environ.get("RFCHECK_DEBUG"):
             traceback.print_exc()
         else:

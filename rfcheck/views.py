@@ -6,6 +6,7 @@ import shutil
 import textwrap
 
 from rfcheck.findings import Status
+from rfcheck.text import for_terminal
 
 _COLOUR = {
     Status.PASS: "green", Status.WARN: "yellow", Status.FAIL: "red", Status.ERROR: "magenta",
@@ -23,19 +24,19 @@ def text_table(run, *, colour: bool = False, width: int | None = None) -> str:
 
     width = width or min(shutil.get_terminal_size((100, 24)).columns, 120)
     w_rule = max([len(f.rule) for f in run.findings] + [4])
-    title = run.spec_name + (f" (rev. {run.spec_revision})" if run.spec_revision else "")
+    title = for_terminal(run.spec_name + (f" (rev. {run.spec_revision})" if run.spec_revision else ""))
     lines = [title, "=" * min(len(title), width)]
     for f in run.findings:
         tag = f"{_LABEL[f.status]:<6}"
         if colour and _COLOUR[f.status]:
             tag = click.style(tag, fg=_COLOUR[f.status], bold=f.status is Status.FAIL)
-        lines.append(f"{tag}  {f.rule:<{w_rule}}  {f.subject}")
-        lines += textwrap.wrap(f.message, width, initial_indent=" " * 8, subsequent_indent=" " * 8)
+        lines.append(f"{tag}  {for_terminal(f.rule):<{w_rule}}  {for_terminal(f.subject)}")
+        lines += textwrap.wrap(for_terminal(f.message), width, initial_indent=" " * 8, subsequent_indent=" " * 8)
     counts = run.counts()
     summary = ", ".join(f"{n} {k}" for k, n in counts.items() if n)
-    verdict = run.verdict.upper()
+    verdict = for_terminal(str(getattr(run, "verdict_label", None) or run.verdict.upper()))
     if colour:
-        verdict = click.style(verdict, fg={"PASS": "green", "WARN": "yellow"}.get(verdict, "red"),
+        verdict = click.style(verdict, fg={"PASS": "green", "WARN": "yellow"}.get(verdict.upper(), "red"),
                               bold=True)
     lines.append(f"verdict: {verdict}  ({summary})")
     return "\n".join(lines)
