@@ -188,28 +188,10 @@ def site_file_path(spec_path: Path, name: str) -> tuple[Path | None, str]:
 
 
 def read_site_tables(path: Path) -> dict[str, ReferenceTable]:
-    """Read a site table file already accepted by :func:`site_file_path`."""
-    from rfcheck.spec import InputError, Problem
+    """Read a site table file already accepted by :func:`site_file_path` (through the guards of
+    :mod:`rfcheck.inputfiles`: regular file, size limit, UTF-8, bounded nesting)."""
+    from rfcheck.spec import _read_toml
 
-    try:
-        data = path.read_bytes()
-        text = data.decode("utf-8")
-    except OSError as exc:
-        raise InputError([Problem(str(path), "", None,
-                                  f"cannot read the site table ({exc.strerror or exc})")]) from None
-    except UnicodeDecodeError:
-        raise InputError([Problem(str(path), "", None,
-                                  "the site table is not UTF-8 text; expected a TOML file")]) from None
-    try:
-        raw = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        line = getattr(exc, "lineno", None)
-        if line is None:
-            import re
-
-            found = re.search(r"line (\d+)", str(exc))
-            line = int(found.group(1)) if found else None
-        raise InputError([Problem(str(path), "", line,
-                                  "not valid TOML (see the line named); expected tables in "
-                                  "the form of rfcheck/data/exposure.toml")]) from None
+    raw, text = _read_toml(path, "site table")
+    data = text.encode("utf-8")
     return parse_tables(raw, text, str(path), path.name, hashlib.sha256(data).hexdigest())

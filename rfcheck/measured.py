@@ -34,6 +34,7 @@ __all__ = [
     "read_field_map",
     "check_coverage",
     "MIN_POINTS",
+    "MAX_ROWS",
 ]
 
 #: fewest distinct values along each axis (cubic interpolation needs four)
@@ -72,15 +73,22 @@ class Coverage:
 # --------------------------------------------------------------------------- parsing
 
 
+#: most data rows accepted in a measured file (a 500 x 500 map), so work stays bounded
+MAX_ROWS = 250_000
+
+
 def _data_lines(path: Path):
     """Yield (line number, text) of non-blank, non-comment lines."""
+    from rfcheck.inputfiles import InputFileError, read_input
+
     try:
-        text = path.read_text(encoding="utf-8-sig")
-    except OSError as exc:
-        raise MeasuredDataError(path, None, f"cannot read the file ({exc.strerror or exc})")
-    except UnicodeDecodeError:
-        raise MeasuredDataError(path, None, "the file is not UTF-8 text; expected a CSV file")
-    for number, line in enumerate(text.splitlines(), start=1):
+        text = read_input(path, "measured field file").text
+    except InputFileError as exc:
+        raise MeasuredDataError(path, None, exc.message) from None
+    if text.startswith("\ufeff"):
+        text = text[1:]
+    # only \n (and \r\n) end a line: the line numbers of messages match what editors show
+    for number, line in enumerate(text.split("\n"), start=1):
         stripped = line.strip()
         if stripped and not stripped.startswith("#"):
             yield number, stripped
@@ -99,22 +107,23 @@ def _parse_header(path: Path, line: int, cells: list[str], accepted: dict[str, s
     expected = ", ".join(f"{n} [{_EXAMPLE_UNIT[_DIMENSION[n]]}]" for n in required)
     names: list[str] = []
     scales: list[float] = []
-    for cell in cells:
+    for position, cell in enumerate(cells, start=1):
         m = _HEADER_CELL.match(cell)
         if not m:
             bare = _BARE_NAME.match(cell)
             if bare and bare.group(1).replace(" ", "").lower() in accepted:
                 raise MeasuredDataError(
-                    path, line, f"column '{cell.strip()}' has no unit; expected a header such as "
-                    f"'{expected}' (unit in brackets)")
+                    path, line, f"header column {position} ({accepted[bare.group(1).replace(' ', '').lower()]}) "
+                    f"has no unit; expected a header such as '{expected}' (unit in brackets)")
             raise MeasuredDataError(
-                path, line, f"cannot read header cell '{cell.strip()}'; expected a header such as "
-                f"'{expected}'")
+                path, line, f"header column {position} is not a name with a unit in brackets; "
+                f"expected a header such as '{expected}'")
         key = m.group(1).replace(" ", "").lower()
         unit = m.group(2)
         if key not in accepted:
             raise MeasuredDataError(
-                path, line, f"unknown column '{m.group(1)}'; expected the columns {expected}")
+                path, line, f"header column {position} names no known column; expected the "
+                f"columns {expected}")
         name = accepted[key]
         if name in names:
             raise MeasuredDataError(path, line, f"column '{name}' appears twice in the header")
@@ -125,7 +134,11 @@ def _parse_header(path: Path, line: int, cells: list[str], accepted: dict[str, s
         try:
             scales.append(scale_to_si(unit, _DIMENSION[name]))
         except UnitError as exc:
-            raise MeasuredDataError(path, line, f"column '{name}': {exc}") from None
+            what = ("is an unknown unit" if "unknown unit" in str(exc) else
+                    f"is not a {_DIMENSION[name].replace('_', ' ')} unit")
+            raise MeasuredDataError(
+                path, line, f"column '{name}': the unit in brackets {what}; expected e.g. "
+                f"'{name} [{_EXAMPLE_UNIT[_DIMENSION[name]]}]'") from None
         names.append(name)
     missing = [n for n in required if n not in names]
     if missing:
@@ -158,16 +171,22 @@ def _read_columns(path: str | Path, accepted: dict[str, str], required: tuple[st
         for name, cell in zip(names, cells):
             cell = cell.strip()
             try:
-                value = float(cell)
+                value = float(cell) if len(cell) <= 64 else math.nan
             except ValueError:
                 raise MeasuredDataError(
-                    path, number, f"column '{name}': found '{cell}'; expected a number") from None
+                    path, number, f"column '{name}' does not hold a number; expected a "
+                    "number such as 12.5 or -3e-2") from None
             if not math.isfinite(value):
                 raise MeasuredDataError(
-                    path, number, f"column '{name}': found '{cell}'; expected a finite number")
+                    path, number, f"column '{name}' does not hold a finite number; expected a "
+                    "number such as 12.5 or -3e-2")
             row.append(value)
         rows.append(row)
         numbers.append(number)
+        if len(rows) > MAX_ROWS:
+            raise MeasuredDataError(
+                path, number, f"more than {MAX_ROWS} data rows; the most accepted (a map of "
+                "500 x 500 nodes)")
     data = np.array(rows, dtype=float).reshape(len(rows), len(names))
     columns = {name: data[:, i] * scales[i] for i, name in enumerate(names)}
     return path, columns, np.array(numbers, dtype=int)

@@ -17,6 +17,8 @@ from typing import Annotated, Any, Literal
 from pydantic import BaseModel, BeforeValidator, ConfigDict, Field, ValidationError, WithJsonSchema
 
 from rfcheck import model as m
+from rfcheck.limits import COUNTS, MAX_QUANTITY_TEXT, TEXT, range_for
+from rfcheck.text import shorten, text_problem
 from rfcheck.tomlines import LineIndex
 from rfcheck.units import DIMENSIONS, UnitError, parse_quantity
 
@@ -51,23 +53,38 @@ class InputError(Exception):
 # --------------------------------------------------------------------------- quantity fields
 
 
-def _quantity(dimension: str, *, positive: bool = False, non_negative: bool = False):
+def _quantity(dimension: str, *, positive: bool = False, non_negative: bool = False,
+              key: str | None = None):
     dim = DIMENSIONS[dimension]
+    rng = range_for(dimension, key)
 
     def check(value: Any) -> float:
         if isinstance(value, bool) or not isinstance(value, str):
             raise ValueError(
                 f"expected a {dim.name} as a string with a unit, e.g. \"{_EXAMPLES[dimension]}\", "
-                f"found {value!r}"
+                f"found {shorten(repr(value), 80)}"
             )
+        if len(value) > MAX_QUANTITY_TEXT:
+            raise ValueError(f"expected a {dim.name} as a number and a unit, e.g. "
+                             f"\"{_EXAMPLES[dimension]}\"; found {len(value)} characters")
         try:
             x = parse_quantity(value, dimension)
         except UnitError as exc:
             raise ValueError(str(exc)) from None
+        except (ArithmeticError, ValueError):
+            x = math.inf
+        if not math.isfinite(x):
+            raise ValueError(f"'{value}' is not a finite {dim.name} once converted to SI "
+                             f"({dim.si}); expected {rng.shown}")
         if positive and not x > 0:
             raise ValueError(f"expected a positive {dim.name}, found '{value}'")
         if non_negative and x < 0:
             raise ValueError(f"expected a {dim.name} ≥ 0, found '{value}'")
+        if abs(x) > rng.high or (positive and x < rng.low):
+            side = "above" if abs(x) > rng.high else "below"
+            raise ValueError(f"'{value}' is {side} the range rfcheck accepts for a {dim.name}, "
+                             f"{rng.shown} ({rng.reason}); a value outside it is usually a "
+                             "unit slip")
         return x
 
     schema = {
@@ -93,6 +110,7 @@ NonNegLength = _quantity("length", non_negative=True)
 Frequency = _quantity("frequency", positive=True)
 FrequencyTol = _quantity("frequency", non_negative=True)
 Field_ = _quantity("magnetic_field")
+Remanence = _quantity("magnetic_field", key="remanence")
 Density = _quantity("density", positive=True)
 Energy = _quantity("energy", positive=True)
 Temperature = _quantity("temperature", positive=True)
@@ -102,26 +120,65 @@ PowerDensity = _quantity("power_density", non_negative=True)
 Current = _quantity("current")
 Angle = _quantity("angle")
 Ratio = _quantity("ratio", non_negative=True)
+CurrentTolerance = _quantity("ratio", non_negative=True, key="current_tolerance")
 Conductivity = _quantity("thermal_conductivity", positive=True)
 Duration = _quantity("time", positive=True)
 
 
 class _Strict(BaseModel):
-    model_config = ConfigDict(extra="forbid", frozen=True)
+    model_config = ConfigDict(extra="forbid", frozen=True, allow_inf_nan=False)
 
 
-Id = Annotated[str, Field(min_length=1, pattern=r"^[A-Za-z0-9][A-Za-z0-9_.\-]*$",
-                          description="identifier: letters, digits, '-', '_', '.'")]
+def _text(key: str):
+    """Free text under `key`: its length limit and the characters refused (rfcheck.text)."""
+    limit, newlines = TEXT[key]
+
+    def check(value: Any) -> Any:
+        if isinstance(value, str):
+            why = text_problem(value, limit, allow_newlines=newlines)
+            if why:
+                raise ValueError(why)
+        return value
+
+    return BeforeValidator(check)
+
+
+def _count(key: str):
+    return Field(max_length=COUNTS[key][0])
+
+
+Id = Annotated[str, _text("id"), Field(min_length=1, pattern=r"^[A-Za-z0-9][A-Za-z0-9_.\-]*$",
+                                       description="identifier: letters, digits, '-', '_', '.'")]
+
+
+def _text_type(key: str):
+    return Annotated[str, _text(key)]
+
+
+NameText = _text_type("name")
+RevisionText = _text_type("revision")
+DescriptionText = _text_type("description")
+LabText = _text_type("lab")
+SpeciesText = _text_type("species")
+FileText = _text_type("file")
+LineText = _text_type("line")
+SourceText = _text_type("source")
+MaterialRef = _text_type("material")
+FeedRef = _text_type("feed")
+TableText = _text_type("table")
+TableFileText = _text_type("table_file")
+PersonText = _text_type("prepared_by")
+NotesText = _text_type("notes")
 
 
 # --------------------------------------------------------------------------- sections
 
 
 class SourceSpec(_Strict):
-    name: str = Field(min_length=1, description="name shown on the report cover")
-    revision: str = ""
-    description: str = ""
-    lab: str = ""
+    name: NameText = Field(min_length=1, description="name shown on the report cover")
+    revision: RevisionText = ""
+    description: DescriptionText = ""
+    lab: LabText = ""
 
 
 class DensitySpan(_Strict):
@@ -135,7 +192,7 @@ class EnergySpan(_Strict):
 
 
 class IonSpec(_Strict):
-    species: str = Field(min_length=1, description='ion species, e.g. "Ar+", "H+", "O3+"')
+    species: SpeciesText = Field(min_length=1, description='ion species, e.g. "Ar+", "H+", "O3+"')
     fraction: float = Field(gt=0, le=1, description="share of the positive charge (sum to 1)")
 
 
@@ -145,7 +202,7 @@ class PressureSpan(_Strict):
 
 
 class NeutralSpec(_Strict):
-    species: str = Field(min_length=1)
+    species: SpeciesText = Field(min_length=1)
     pressure: Pressure | PressureSpan = Field(
         description='operating pressure, "0.3 Pa", or its range { min = "0.1 Pa", max = "1 Pa" }')
     temperature: Temperature = 300.0
@@ -153,16 +210,16 @@ class NeutralSpec(_Strict):
 
 class ProfileSpec(_Strict):
     kind: Literal["flat", "parabolic", "ramp", "table"]
-    exponent: float = Field(1.0, gt=0)
+    exponent: float = Field(1.0, gt=0, le=100)
     edge_length: NonNegLength = 0.0
-    points: list[tuple[Length, float]] = Field(
-        default_factory=list, description='for kind="table": [["0 mm", 0.1], ["50 mm", 1.0], ...]')
+    points: list[tuple[Length, Annotated[float, Field(ge=0, le=1e6)]]] = Field(
+        default_factory=list, max_length=COUNTS["points"][0], description='for kind="table": [["0 mm", 0.1], ["50 mm", 1.0], ...]')
 
 
 class PlasmaSpec(_Strict):
     density: DensitySpan
     electron_temperature: EnergySpan
-    ions: list[IonSpec] = Field(min_length=1)
+    ions: list[IonSpec] = Field(min_length=1, max_length=COUNTS["ions"][0])
     neutral: NeutralSpec | None = None
     profile: Literal["flat", "parabolic", "ramp"] | ProfileSpec = "flat"
 
@@ -190,7 +247,7 @@ class EndWallsSpec(_Strict):
 class ChamberSpec(_Strict):
     radius: PosLength
     z: ZSpan
-    landmarks: list[LandmarkSpec] = Field(default_factory=list)
+    landmarks: list[LandmarkSpec] = Field(default_factory=list, max_length=COUNTS["landmarks"][0])
     end_walls: EndWallsSpec = Field(default_factory=EndWallsSpec)
 
 
@@ -200,7 +257,7 @@ class CoilSpec(_Strict):
     outer_radius: PosLength
     z: Length
     length: PosLength
-    turns: int = Field(gt=0)
+    turns: int = Field(gt=0, le=1_000_000)
     current: Current
 
 
@@ -210,7 +267,7 @@ class RingSpec(_Strict):
     outer_radius: PosLength
     z: Length
     length: PosLength
-    remanence: Field_
+    remanence: Remanence
 
 
 class MultipoleSpec(_Strict):
@@ -219,9 +276,9 @@ class MultipoleSpec(_Strict):
     outer_radius: PosLength
     z: Length
     length: PosLength
-    remanence: Field_
-    poles: int = Field(6, ge=2, multiple_of=2)
-    segments: int = Field(24, ge=2)
+    remanence: Remanence
+    poles: int = Field(6, ge=2, le=64, multiple_of=2)
+    segments: int = Field(24, ge=2, le=1440)
     orientation: Angle = 0.0
 
 
@@ -232,16 +289,16 @@ class UniformSpec(_Strict):
 
 class MeasuredSpec(_Strict):
     id: Id = "measured"
-    file: str = Field(min_length=1, description="CSV file, relative to the spec file")
+    file: FileText = Field(min_length=1, description="CSV file, relative to the spec file")
     scales_with_current: bool = True
 
 
 class MagnetSpec(_Strict):
-    current_tolerance: Ratio = 0.0
+    current_tolerance: CurrentTolerance = 0.0
     trap: Literal["none", "mirror", "minimum-b"] = "none"
-    coils: list[CoilSpec] = Field(default_factory=list)
-    rings: list[RingSpec] = Field(default_factory=list)
-    multipoles: list[MultipoleSpec] = Field(default_factory=list)
+    coils: list[CoilSpec] = Field(default_factory=list, max_length=COUNTS["coils"][0])
+    rings: list[RingSpec] = Field(default_factory=list, max_length=COUNTS["rings"][0])
+    multipoles: list[MultipoleSpec] = Field(default_factory=list, max_length=COUNTS["multipoles"][0])
     uniform: UniformSpec | None = None
     axis_table: MeasuredSpec | None = None
     field_map: MeasuredSpec | None = None
@@ -266,7 +323,7 @@ class ColdCavitySpec(_Strict):
     """Reflection of the empty (unlit) cavity seen by the generator: |Γ| or VSWR, not both."""
 
     gamma: Ratio | None = Field(None, description='|Γ| of the cold cavity, e.g. "0.9"')
-    vswr: float | None = Field(None, ge=1, description="VSWR of the cold cavity, e.g. 19")
+    vswr: float | None = Field(None, ge=1, le=1e6, description="VSWR of the cold cavity, e.g. 19")
 
 
 class ShortRatingSpec(_Strict):
@@ -283,7 +340,7 @@ class FeedSpec(_Strict):
     max_reflected_power: Power | None = None
     max_reflected_power_short: ShortRatingSpec | None = Field(
         None, description='a time-limited rating: { power = "1.5 kW", duration = "10 s" }')
-    line: str = Field(min_length=1, description='"WR-340", another EIA size, or "free-space"')
+    line: LineText = Field(min_length=1, description='"WR-340", another EIA size, or "free-space"')
     launch: LaunchSpec
     absorption: Literal["ecr", "ecr-harmonic-2", "uhr", "icr", "lh", "helicon", "inductive"]
     cold_cavity: ColdCavitySpec | None = Field(
@@ -295,8 +352,8 @@ class FeedSpec(_Strict):
 
 class MaterialSpec(_Strict):
     id: Id
-    permittivity: float = Field(ge=1)
-    loss_tangent: float = Field(ge=0)
+    permittivity: float = Field(ge=1, le=1e4)
+    loss_tangent: float = Field(ge=0, le=10)
     frequency: Frequency | None = Field(
         None, description="frequency at which the permittivity and loss tangent are quoted")
     permittivity_range: tuple[float, float] | None = Field(
@@ -305,27 +362,27 @@ class MaterialSpec(_Strict):
     loss_tangent_range: tuple[float, float] | None = Field(
         None, description="[low, high] spread of the loss tangent at `frequency`; "
                           "low ≤ loss_tangent ≤ high, low ≥ 0")
-    source: str = Field(min_length=1, description="where the values come from")
+    source: SourceText = Field(min_length=1, description="where the values come from")
     thermal_conductivity: Conductivity | None = None
 
 
 class LayerSpec(_Strict):
-    material: str = Field(min_length=1)
+    material: MaterialRef = Field(min_length=1)
     thickness: PosLength
     thickness_tolerance: NonNegLength = 0.0
 
 
 class WindowSpec(_Strict):
     id: Id
-    feed: str
+    feed: FeedRef
     z: Length
-    layers: list[LayerSpec] = Field(min_length=1)
+    layers: list[LayerSpec] = Field(min_length=1, max_length=COUNTS["layers"][0])
     max_absorbed_power: Power | None = None
     diameter: PosLength | None = None
 
 
 class SurveyReadingSpec(_Strict):
-    feed: str | None = Field(None, description="the feed read; not declared: a broadband "
+    feed: FeedRef | None = Field(None, description="the feed read; not declared: a broadband "
                                                "reading of all feeds together")
     power_density: PowerDensity = Field(description='reading, e.g. "1 mW/cm^2"')
     at: PosLength = Field(description="distance of the probe from the leaking spot")
@@ -343,7 +400,7 @@ class LeakPathSpec(_Strict):
         description='"seam" (flange, choke, door or lid joint with a declared attenuation) or '
                     '"aperture" (tubes below cutoff: vent honeycomb, viewport tube, perforated '
                     'plate)')
-    feeds: list[str] = Field(default_factory=list,
+    feeds: list[FeedRef] = Field(default_factory=list, max_length=COUNTS["feeds"][0],
                              description="feeds whose power reaches it; empty: all feeds")
     attenuation: Ratio | None = Field(
         None, description='seam: leakage below the forward power, e.g. "60 dB"')
@@ -353,7 +410,7 @@ class LeakPathSpec(_Strict):
     height: PosLength | None = None
     depth: PosLength | None = Field(None, description="aperture: length of each tube (plate "
                                                       "thickness)")
-    count: int = Field(1, ge=1, description="aperture: number of identical cells")
+    count: int = Field(1, ge=1, le=100_000_000, description="aperture: number of identical cells")
     size: PosLength | None = Field(
         None, description="largest dimension of the leaking area (seam length, panel "
                           "diagonal); sets the far-field distance")
@@ -365,11 +422,11 @@ class LeakSpec(_Strict):
                           "not declared: from the keys given")
     power_density: PowerDensity | None = Field(None, description="one survey reading")
     at: PosLength | None = None
-    feed: str | None = None
+    feed: FeedRef | None = None
     forward_power: Power | None = None
     size: PosLength | None = None
-    readings: list[SurveyReadingSpec] = Field(default_factory=list)
-    paths: list[LeakPathSpec] = Field(default_factory=list)
+    readings: list[SurveyReadingSpec] = Field(default_factory=list, max_length=COUNTS["readings"][0])
+    paths: list[LeakPathSpec] = Field(default_factory=list, max_length=COUNTS["paths"][0])
 
 
 class ControlledAreaSpec(_Strict):
@@ -378,9 +435,9 @@ class ControlledAreaSpec(_Strict):
 
 
 class ExposureSpec(_Strict):
-    table: str | None = Field(None, description="reference-level table id (shipped, or in "
+    table: TableText | None = Field(None, description="reference-level table id (shipped, or in "
                                                 "table_file)")
-    table_file: str | None = Field(
+    table_file: TableFileText | None = Field(
         None, description="site table file next to the spec, in the form of the shipped "
                           "tables; replaces them")
     leak: LeakSpec | None = None
@@ -394,10 +451,10 @@ class ExposureSpec(_Strict):
 
 
 class ReviewSpec(_Strict):
-    prepared_by: str = ""
-    checked_by: str = ""
-    approved_by: str = ""
-    notes: str = ""
+    prepared_by: PersonText = ""
+    checked_by: PersonText = ""
+    approved_by: PersonText = ""
+    notes: NotesText = ""
 
 
 class SpecFile(_Strict):
@@ -408,9 +465,9 @@ class SpecFile(_Strict):
     plasma: PlasmaSpec
     chamber: ChamberSpec
     magnet: MagnetSpec
-    feed: list[FeedSpec] = Field(min_length=1)
-    window: list[WindowSpec] = Field(default_factory=list)
-    material: list[MaterialSpec] = Field(default_factory=list)
+    feed: list[FeedSpec] = Field(min_length=1, max_length=COUNTS["feed"][0])
+    window: list[WindowSpec] = Field(default_factory=list, max_length=COUNTS["window"][0])
+    material: list[MaterialSpec] = Field(default_factory=list, max_length=COUNTS["material"][0])
     exposure: ExposureSpec | None = None
     review: ReviewSpec = Field(default_factory=ReviewSpec)
 
@@ -446,27 +503,54 @@ def _entity_path(loc: tuple, raw: dict) -> str:
 def _message(err: dict) -> str:
     kind = err.get("type", "")
     found = err.get("input")
+    shown = shorten(repr(found), 80)
     if kind == "extra_forbidden":
         return "unknown key (not part of the specification format; check the spelling)"
     if kind == "missing":
         return "required key is missing"
+    if kind == "too_long" and isinstance(found, list):
+        key = next((p for p in reversed(err.get("loc", ())) if isinstance(p, str)), "")
+        limit = (err.get("ctx") or {}).get("max_length")
+        why = COUNTS.get(key, (None, ""))[1]
+        return (f"{len(found)} entries; at most {limit} are accepted"
+                + (f" ({why}; the bound keeps the work of a check finite)" if why else ""))
+    if kind == "finite_number":
+        return f"found {shown}; expected a finite number"
     msg = err.get("msg", "invalid value")
     if msg.startswith("Value error, "):
         return msg[len("Value error, "):]
     if kind in ("literal_error", "enum"):
-        return f"found {found!r}; {msg[0].lower() + msg[1:]}"
-    return f"found {found!r}: {msg[0].lower() + msg[1:]}" if found is not None else msg
+        return f"found {shown}; {msg[0].lower() + msg[1:]}"
+    return f"found {shown}: {msg[0].lower() + msg[1:]}" if found is not None else msg
+
+
+def _model_names() -> set[str]:
+    """Names of the validation models (pydantic puts them in error paths as union tags)."""
+    out, todo = set(), [_Strict]
+    while todo:
+        cls = todo.pop()
+        for sub in cls.__subclasses__():
+            out.add(sub.__name__)
+            todo.append(sub)
+    return out
+
+
+def _is_union_tag(part: Any, models: set[str]) -> bool:
+    return isinstance(part, str) and (part in models or "[" in part
+                                      or part in ("float", "int", "str", "bool"))
 
 
 def _read_toml(path: Path, what: str) -> tuple[dict, str]:
-    if not path.exists():
-        raise InputError([Problem(str(path), "", None, f"{what} file not found")])
-    if not path.is_file():
-        raise InputError([Problem(str(path), "", None, f"{what} path is not a file")])
+    """Parse the TOML input file `path` (a spec, a policy, a site table) with the guards of
+    :mod:`rfcheck.inputfiles`: regular file, size limit, UTF-8, bounded nesting."""
+    from rfcheck.inputfiles import MAX_NESTING, InputFileError, max_nesting, read_input
+
     try:
-        text = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError([Problem(str(path), "", None, f"cannot read {what}: {exc}")]) from None
+        text = read_input(path, what).text
+    except FileNotFoundError:
+        raise InputError([Problem(str(path), "", None, f"{what} file not found")]) from None
+    except InputFileError as exc:
+        raise InputError([Problem(str(path), "", None, exc.message)]) from None
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
@@ -478,6 +562,16 @@ def _read_toml(path: Path, what: str) -> tuple[dict, str]:
             found = re.search(r"line (\d+)", msg)
             line = int(found.group(1)) if found else None
         raise InputError([Problem(str(path), "", line, f"not valid TOML: {msg}")]) from None
+    except RecursionError:
+        raise InputError([Problem(str(path), "", None,
+                                  f"arrays or tables nested too deeply to read; a {what} needs "
+                                  f"at most {MAX_NESTING} levels")]) from None
+    depth, where = max_nesting(data)
+    if depth > MAX_NESTING:
+        line = LineIndex(text).line_of(where)
+        raise InputError([Problem(str(path), _entity_path(where[:MAX_NESTING], data), line,
+                                  f"arrays or tables nested more than {MAX_NESTING} levels deep; "
+                                  f"a {what} needs at most {MAX_NESTING}")])
     return data, text
 
 
@@ -497,15 +591,27 @@ def load_spec(path: str | Path) -> LoadedSpec:
     raw, text = _read_toml(path, "specification")
     lines = LineIndex(text)
     problems: list[Problem] = []
+    models = _model_names()
     try:
         spec = SpecFile.model_validate(raw)
     except ValidationError as exc:
         for err in exc.errors():
+            # drop pydantic's union-branch tags from the path (e.g. 'ProfileSpec', 'literal[...]');
+            # a key the user wrote is never one of them (unknown keys are reported as written)
             loc = tuple(err["loc"])
-            # drop pydantic's union-branch tags from the path (e.g. 'ProfileSpec', 'literal[...]')
-            loc = tuple(p for p in loc if not (isinstance(p, str) and (p[:1].isupper() or "[" in p)))
-            problems.append(Problem(str(path), _entity_path(loc, raw), lines.line_of(loc),
-                                    _message(err)))
+            keep_last = err.get("type") == "extra_forbidden"
+            loc = tuple(p for p in (loc[:-1] if keep_last else loc)
+                        if not _is_union_tag(p, models)) + (loc[-1:] if keep_last else ())
+            line = lines.line_of(loc)
+            message = _message(err)
+            if line is None and err.get("type") == "missing" and len(loc) == 1:
+                line = 1
+                message = (f"required table [{loc[0]}] is missing from the file"
+                           if loc[0] not in ("schema", "feed") else
+                           "required key 'schema' is missing (add schema = 1 at the top)"
+                           if loc[0] == "schema" else
+                           "required [[feed]] table is missing from the file")
+            problems.append(Problem(str(path), _entity_path(loc, raw), line, message))
         raise InputError(_dedupe(problems)) from None
     checker = _CrossCheck(spec, raw, lines, path)
     model = checker.build()

@@ -47,7 +47,9 @@ class LineIndex:
         open_array: tuple | None = None  # path of a multi-line array value being read
         depth = 0  # bracket depth inside that array
         element = -1
-        for lineno, raw in enumerate(text.splitlines(), start=1):
+        # TOML ends lines at LF (CRLF) only; str.splitlines would also split at U+2028, VT, FF…
+        for lineno, raw in enumerate(text.split("\n"), start=1):
+            raw = raw.removesuffix("\r")
             line = _strip_strings(raw)
             if open_array is not None:
                 # inside a multi-line array: count inline-table elements

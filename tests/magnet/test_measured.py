@@ -37,7 +37,8 @@ def test_axis_table_parentheses_column_order_and_descending(tmp_path):
                  id="unknown unit"),
     pytest.param("z [mm], B [s]\n0, 1\n1, 2\n2, 3\n3, 4\n", 1, "not a magnetic",
                  id="wrong dimension"),
-    pytest.param("z [mm], B [G]\n0, 1\n1, 2\n2, x3\n3, 4\n", 4, "found 'x3'",
+    pytest.param("z [mm], B [G]\n0, 1\n1, 2\n2, x3\n3, 4\n", 4,
+                 "column 'B' does not hold a number",
                  id="non-numeric cell"),
     pytest.param("z [mm], B [G]\n0, 1\n1, nan\n2, 3\n3, 4\n", 3, "finite", id="NaN"),
     pytest.param("z [mm], B [G]\n0, 1\n1, 2, 5\n2, 3\n3, 4\n", 3, "3 cells", id="ragged row"),
@@ -45,7 +46,7 @@ def test_axis_table_parentheses_column_order_and_descending(tmp_path):
     pytest.param("z [mm], B [G]\n0, 1\n2, 2\n1, 3\n3, 4\n", 4, "monotonic",
                  id="non-monotonic z"),
     pytest.param("z [mm], B [G]\n0, 1\n1, 2\n2, 3\n", None, "at least 4", id="too few points"),
-    pytest.param("z [mm], H [A/m]\n0, 1\n1, 2\n2, 3\n3, 4\n", 1, "unknown column",
+    pytest.param("z [mm], H [A/m]\n0, 1\n1, 2\n2, 3\n3, 4\n", 1, "header column 2 names no known column",
                  id="unknown column"),
     pytest.param("# nothing\n", None, "no header", id="empty file"),
 ])
