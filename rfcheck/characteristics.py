@@ -75,4 +75,6 @@ def characteristics(ctx: Context) -> dict:
 
     directivity = ctx.option("exposure.leak-level", "leak_directivity")
     out["exposure"] = exposure_characteristics(ctx, directivity or SMALL_LEAK_DIRECTIVITY)
-    return out
+    from rfcheck.findings import _finite
+
+    return _finite(out)  # lists of crossings etc. carry raw floats: no NaN may reach the JSON

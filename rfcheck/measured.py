@@ -25,6 +25,7 @@ from pathlib import Path
 
 import numpy as np
 
+from rfcheck.limits import range_for
 from rfcheck.units import UnitError, scale_to_si
 
 __all__ = [
@@ -189,6 +190,14 @@ def _read_columns(path: str | Path, accepted: dict[str, str], required: tuple[st
                 "500 x 500 nodes)")
     data = np.array(rows, dtype=float).reshape(len(rows), len(names))
     columns = {name: data[:, i] * scales[i] for i, name in enumerate(names)}
+    for name, values in columns.items():
+        rng = range_for(_DIMENSION[name])
+        outside = np.nonzero(~(np.abs(values) <= rng.high))[0]
+        if outside.size:
+            raise MeasuredDataError(
+                path, int(numbers[int(outside[0])]),
+                f"column '{name}' holds a value outside {rng.shown} ({rng.reason}); expected "
+                f"a {_DIMENSION[name].replace('_', ' ')} a real source can have (a unit slip?)")
     return path, columns, np.array(numbers, dtype=int)
 
 

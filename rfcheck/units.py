@@ -155,7 +155,20 @@ def parse_quantity(text: str, dimension: str) -> float:
     """Read ``"<number> <unit>"`` as a quantity of `dimension` and return its SI magnitude.
 
     Raises :class:`UnitError` with a message that says what was found and what was expected.
+    Whatever pint raises on a unit text it cannot make sense of (its tokenizer, logarithmic
+    units combined with others, overflow in a conversion) becomes a UnitError too.
     """
+    try:
+        return _parse_quantity(text, dimension)
+    except (UnitError, KeyError):
+        raise
+    except Exception:  # noqa: BLE001 - any failure inside pint on odd unit text is bad input
+        dim = DIMENSIONS[dimension]
+        raise UnitError(f"cannot read '{text}' as a {dim.name}; expected a number and a unit "
+                        f"such as '{_example(dimension)}'") from None
+
+
+def _parse_quantity(text: str, dimension: str) -> float:
     if dimension not in _PINT_DIMS:
         raise KeyError(f"unknown dimension {dimension!r}")
     dim = DIMENSIONS[dimension]

@@ -258,3 +258,27 @@ def test_a_valid_measured_table_still_runs(tmp_path):
     out = run(tmp_path, fz.measured_spec("axis.csv"), files={"axis.csv": fz.axis_table().encode()})
     assert out.problems == []
     assert out.code in (0, 1), out.stderr[:2000]
+
+
+# --------------------------------------------------------------------------- found by tools/fuzz.py
+
+
+@pytest.mark.parametrize("value", ["3.0e+9 eV dB", "-0 Pa dB", "200 A]A\u128a", "1 ((("])
+def test_unit_text_pint_cannot_parse_is_an_input_error(tmp_path, value):
+    # pint raised AttributeError (a logarithmic unit combined with another) and TokenError
+    # (unbalanced brackets) from inside its parser: exit 3 before
+    spec = BENCH.replace('attenuation = "50 dB"', f'attenuation = "{value}"', 1)
+    assert spec != BENCH
+    errors = refused(run(tmp_path, spec))
+    assert any(".attenuation:" in e for e in errors), errors
+
+
+@pytest.mark.parametrize("cell", ["-1e308", "92233720368547758081008.688"])
+def test_measured_values_beyond_any_magnet_are_refused_with_row_and_column(tmp_path, cell):
+    # a field of 1e304 T made the interpolated axis field NaN (exit 3), 9e18 T put NaN into
+    # the characteristics of the JSON (exit 3 at serialisation)
+    rows = fz.axis_table().split("\n")
+    rows[5] = rows[5].split(",")[0] + ", " + cell
+    out = run(tmp_path, fz.measured_spec("axis.csv"), files={"axis.csv": "\n".join(rows).encode()})
+    errors = refused(out)
+    assert any("axis.csv:6: column 'B' holds a value outside up to 50 T" in e for e in errors), errors
