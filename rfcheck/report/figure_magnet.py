@@ -12,6 +12,13 @@ from __future__ import annotations
 import numpy as np
 
 from rfcheck.report.figures import _mpl, _svg
+from rfcheck.text import shorten
+
+
+def _short(ident: str) -> str:
+    """An id as a figure label: long ids are cut so they never squeeze the plot."""
+    return shorten(ident, 16)
+
 
 #: grid of the map (radial × axial samples per half plane)
 MAP_R = 41
@@ -75,17 +82,17 @@ def field_map_figure(run) -> dict | None:
         c = _COLOURS[i % len(_COLOURS)]
         ax.contour(zm, r, b, levels=[b_res], colors=[c], linewidths=1.6)
         handles.append(plt.Line2D([], [], color=c, lw=1.6,
-                                  label=f"|B| = {b_res:.4g} T, feed {feed.id} "
+                                  label=f"|B| = {b_res:.4g} T, feed {_short(feed.id)} "
                                         f"({feed.frequency / 1e9:.4g} GHz, h={h})"))
     ax.axhline(0.0, color="white", lw=0.6, ls="--", alpha=0.7)
     r_top = r[-1]
     outside = []
     for lm in model.chamber.landmarks:
         ax.axvline(lm.z * 1e3, color="white", lw=0.9, ls=":")
-        ax.text(lm.z * 1e3, r_top * 0.95, f" {lm.id}", color="white", fontsize=7, va="top",
+        ax.text(lm.z * 1e3, r_top * 0.95, f" {_short(lm.id)}", color="white", fontsize=7, va="top",
                 rotation=90)
-    markers = ([(f"window {w.id}", w.z, "s") for w in model.windows]
-               + [(f"launcher {f.id}", f.launch.z, ">" if f.launch.direction > 0 else "<")
+    markers = ([(f"window {_short(w.id)}", w.z, "s") for w in model.windows]
+               + [(f"launcher {_short(f.id)}", f.launch.z, ">" if f.launch.direction > 0 else "<")
                   for f in model.feeds])
     labels: dict[float, list[str]] = {}
     for name, z, marker in markers:

@@ -10,6 +10,13 @@ from __future__ import annotations
 import numpy as np
 
 from rfcheck.report.figures import _mpl, _svg
+from rfcheck.text import shorten
+
+
+def _short(ident: str) -> str:
+    """An id as a figure label: long ids are cut so they never squeeze the plot."""
+    return shorten(ident, 16)
+
 
 _COLOURS = ["#1f3f73", "#55a868", "#8172b3", "#dd8452", "#937860"]
 
@@ -58,7 +65,7 @@ def launch_path_figure(run) -> dict | None:
         ax.set_xlim(min(z[0], z[-1]), max(z[0], z[-1]))
         ax.set_xlabel("z (mm)")
         ax.set_ylabel("Re n²")
-        ax.set_title(f"feed {fid}: {p['wave']}, launched at z = "
+        ax.set_title(f"feed {_short(fid)}: {p['wave']}, launched at z = "
                      f"{p['launch_z']['value'] * 1e3:.4g} mm towards "
                      f"{'+' if p['direction'] > 0 else '−'}z", fontsize=8.5)
         ax.legend(loc="best", fontsize=7, framealpha=0.85)
@@ -103,7 +110,7 @@ def cma_figure(run) -> dict | None:
         for j, c in enumerate(p["corners"]):
             x, yy = _values(c["x"]), _values(c["y"])
             ax.plot(x, yy, color=colour, lw=0.9, alpha=0.7,
-                    label=f"feed {fid}: {p['wave']}" if j == 0 else None)
+                    label=f"feed {_short(fid)}: {p['wave']}" if j == 0 else None)
             ax.plot(x[:1], yy[:1], "o", ms=3, color=colour)
     ax.set_xlim(0.0, x_max)
     ax.set_ylim(0.0, y_max)

@@ -11,6 +11,13 @@ import math
 import numpy as np
 
 from rfcheck.report.figures import _mpl, _svg
+from rfcheck.text import shorten
+
+
+def _short(ident: str) -> str:
+    """An id as a figure label: long ids are cut so they never squeeze the plot."""
+    return shorten(ident, 16)
+
 
 #: Half-width of the plotted frequency range as a fraction of the feed frequency (at least
 #: three times the feed's tolerance).
@@ -62,16 +69,16 @@ def window_figure(run) -> dict | None:
         lo, hi = feed.frequency - feed.frequency_tolerance, feed.frequency + feed.frequency_tolerance
         if hi > lo:
             ax.axvspan(lo / 1e9, hi / 1e9, color="#dd8452", alpha=0.25, lw=0,
-                       label=f"feed {feed.id}: f ± tolerance")
+                       label=f"feed {_short(feed.id)}: f ± tolerance")
         else:
-            ax.axvline(feed.frequency / 1e9, color="#dd8452", lw=1.2, label=f"feed {feed.id}")
+            ax.axvline(feed.frequency / 1e9, color="#dd8452", lw=1.2, label=f"feed {_short(feed.id)}")
         if limit is not None:
             ax.axhline(limit, color="#c44e52", lw=1.0, ls="--", label=f"limit |Γ| = {limit:.3g}")
         worst, wf, _ = a.worst_gamma
         if math.isfinite(worst):
             ax.plot([wf / 1e9], [worst], "o", ms=4, color="#c44e52")
         stack = " + ".join(f"{la.thickness * 1e3:.4g} mm {la.material}" for la in a.window.layers)
-        ax.set_title(f"window {a.window.id}: {stack} in {a.line.name}", fontsize=8.5)
+        ax.set_title(f"window {_short(a.window.id)}: {stack} in {a.line.name}", fontsize=8.5)
         ax.set_xlabel("frequency (GHz)")
         ax.set_ylabel("|Γ|")
         ax.set_xlim(fg[0], fg[-1])

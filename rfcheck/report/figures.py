@@ -7,7 +7,12 @@ no verdicts.
 from __future__ import annotations
 
 import io
+from rfcheck.text import shorten
 
+
+def _short(ident: str) -> str:
+    """An id as a figure label: long ids are cut so they never squeeze the plot."""
+    return shorten(ident, 16)
 
 
 def _mpl():
@@ -66,13 +71,13 @@ def axis_field_figure(run) -> dict | None:
         c = colours[i % len(colours)]
         ax.axhspan(lo, hi, color=c, alpha=0.25, lw=0)
         ax.axhline(float(ecr_field(feed.frequency, harmonic=h)) * 1e3, color=c, lw=1, ls="--",
-                   label=f"resonance, feed {feed.id} ({feed.frequency / 1e9:.4g} GHz, h={h})")
+                   label=f"resonance, feed {_short(feed.id)} ({feed.frequency / 1e9:.4g} GHz, h={h})")
     ymax = ax.get_ylim()[1]
     marks: dict[float, list[str]] = {}
     outside: list[str] = []
-    for name, zz in ([(lm.id, lm.z) for lm in model.chamber.landmarks]
-                     + [(f"window {w.id}", w.z) for w in model.windows]
-                     + [(f"launch {f.id}", f.launch.z) for f in model.feeds]):
+    for name, zz in ([(_short(lm.id), lm.z) for lm in model.chamber.landmarks]
+                     + [(f"window {_short(w.id)}", w.z) for w in model.windows]
+                     + [(f"launch {_short(f.id)}", f.launch.z) for f in model.feeds]):
         marks.setdefault(round(zz, 6), []).append(name)
     z_lo, z_hi = float(z[0]), float(z[-1])
     for zz, names in sorted(marks.items()):
