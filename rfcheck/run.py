@@ -279,9 +279,10 @@ def input_files(loaded: LoadedSpec, policy: Policy) -> tuple[InputRecord, ...]:
       a file changed in between is refused (InputError), never fingerprinted wrongly.
     * Measured axis tables and field maps: the model keeps only the parsed numbers, so the file
       is read again (the same guards), here, before any rule runs. The bytes are not parsed
-      again to compare them with the model: that costs 0.5–0.7 s on the largest accepted map
-      (500 x 500 nodes, 11 MB; about 13 % of that run) against 15 ms for the read and the
-      hash. A file that vanished or stopped being readable is refused (InputError); one
+      again to compare them with the model: on the largest accepted map (500 x 500 nodes,
+      8.1 MB, `tools/budgets.py`) parsing costs 0.57 s (median of 5), about a third of loading
+      and checking that spec (1.57 s), against 9 ms for this read and hash (same session,
+      alternating). A file that vanished or stopped being readable is refused (InputError); one
       rewritten between the load and this read would go unnoticed.
 
     The default policy and the shipped tables are not input files.
