@@ -13,6 +13,12 @@ Verdict (`Run.verdict`, reasons in `Run.verdict_reasons`):
 
 So a pass never comes from nothing evaluated. `Run.exit_fails` says whether the command
 line should exit 1 (fail or not evaluated).
+
+Input files (`Run.inputs`, JSON ``inputs``, the PDF cover and attachments): every file the
+user's run read — the specification, the user policy, measured axis tables and field maps, a
+site exposure table — with its role, its name as given, its size and the SHA-256 of its bytes
+(:func:`input_files`). Shipped data (the default policy, the built-in tables) are not input
+files.
 """
 
 from __future__ import annotations
@@ -21,6 +27,7 @@ import datetime as dt
 import hashlib
 import traceback
 from dataclasses import dataclass, field, replace
+from pathlib import Path
 
 from rfcheck import __version__
 from rfcheck.findings import Finding, Status
@@ -50,6 +57,34 @@ class RuleUse:
     options: dict[str, dict]  # name -> {value (text), si, source, origin, doc}
 
 
+#: roles of input files, in the order they are listed
+INPUT_ROLES = ("specification", "policy", "measured axis table", "measured field map",
+               "site exposure table")
+
+
+@dataclass(frozen=True)
+class InputRecord:
+    """One input file of a run: its role (one of INPUT_ROLES), its name as the user gave it
+    (the specification and the policy: their file names; a measured or site file: the path
+    written in the spec), and the exact bytes (their size and SHA-256)."""
+
+    role: str
+    file: str
+    data: bytes = field(repr=False)
+    sha256: str = ""
+
+    def __post_init__(self):
+        if not self.sha256:
+            object.__setattr__(self, "sha256", hashlib.sha256(self.data).hexdigest())
+
+    @property
+    def size(self) -> int:
+        return len(self.data)
+
+    def to_json(self) -> dict:
+        return {"role": self.role, "file": self.file, "bytes": self.size, "sha256": self.sha256}
+
+
 @dataclass(frozen=True)
 class Run:
     spec_name: str
@@ -70,6 +105,8 @@ class Run:
     rules_total: int = 0
     #: waivers of the policy that waived no finding: {"waiver", "file", "line", "why"}
     unused_waivers: tuple[dict, ...] = ()
+    #: every input file of the run, in INPUT_ROLES order (see :func:`input_files`)
+    inputs: tuple[InputRecord, ...] = ()
 
     def coverage_problems(self) -> tuple[str, ...]:
         """Why this run did not review the design, if it did not (empty when it did)."""
@@ -157,6 +194,7 @@ class Run:
             "spec": {"name": self.spec_name, "revision": self.spec_revision,
                      "file": self.spec_file, "sha256": self.spec_sha256},
             "policy": {"name": self.policy_name, "sha256": self.policy_sha256},
+            "inputs": [i.to_json() for i in self.inputs],
             "verdict": self.verdict,
             "verdict_reasons": list(self.verdict_reasons),
             "counts": self.counts(),
@@ -176,6 +214,7 @@ def sha256_text(text: str) -> str:
 def run(loaded: LoadedSpec, policy: Policy) -> Run:
     """Evaluate every selected rule on the loaded spec; a rule that raises becomes an error finding."""
     model = loaded.model
+    inputs = input_files(loaded, policy)  # before evaluating: as close to the load as can be
     ctx = Context(model, Envelope.of(model))
     ctx.selected_options.update({r.id: policy.option_values(r) for r in all_rules()
                                  if policy.selected(r.id)})
@@ -226,7 +265,73 @@ def run(loaded: LoadedSpec, policy: Policy) -> Run:
         policy_sha256=policy.sha256, policy_texts=policy.texts, findings=tuple(findings),
         characteristics=chars, rules=tuple(used), model=model, context=ctx,
         rules_total=len(all_rules()),
-        unused_waivers=_unused_waivers(policy, used, matched, applied, now))
+        unused_waivers=_unused_waivers(policy, used, matched, applied, now), inputs=inputs)
+
+
+def input_files(loaded: LoadedSpec, policy: Policy) -> tuple[InputRecord, ...]:
+    """Every input file of the run with the bytes that were evaluated, as far as they are known.
+
+    * Specification and user policy: the text the loader kept, encoded as UTF-8. The reader
+      (`rfcheck.inputfiles.read_input`) decoded the file's bytes strictly as UTF-8, so the
+      encoding gives back exactly the bytes read (a byte-order mark included); no second read.
+    * Site exposure table: read again next to the spec (the same guards) and its SHA-256
+      compared with the one the model kept from the first read (`ReferenceTable.sha256`):
+      a file changed in between is refused (InputError), never fingerprinted wrongly.
+    * Measured axis tables and field maps: the model keeps only the parsed numbers, so the file
+      is read again (the same guards), here, before any rule runs. The bytes are not parsed
+      again to compare them with the model: on the largest accepted map (500 x 500 nodes,
+      8.1 MB, `tools/budgets.py`) parsing costs 0.57 s (median of 5), about a third of loading
+      and checking that spec (1.57 s), against 9 ms for this read and hash (same session,
+      alternating). A file that vanished or stopped being readable is refused (InputError); one
+      rewritten between the load and this read would go unnoticed.
+
+    The default policy and the shipped tables are not input files.
+    """
+    from rfcheck.inputfiles import InputFileError, read_input
+    from rfcheck.model import AxisTable, FieldMap
+    from rfcheck.spec import InputError, Problem
+    from rfcheck.tomlines import LineIndex
+
+    model = loaded.model
+    spec_file = str(loaded.path)
+
+    def refused(key: tuple, message: str) -> InputError:
+        line = LineIndex(loaded.text).line_of(key)
+        return InputError([Problem(spec_file, ".".join(key), line, message)])
+
+    def read_again(key: tuple, path, what: str) -> bytes:
+        try:
+            return read_input(path, what).data
+        except FileNotFoundError:
+            raise refused(key, f"the {what} {path} was read when the spec was loaded but is "
+                               "gone now; run again") from None
+        except InputFileError as exc:
+            raise refused(key, f"the {what} {path} was read when the spec was loaded but "
+                               f"cannot be read again: {exc.message}; run again") from None
+
+    out = [InputRecord("specification", loaded.path.name, loaded.text.encode("utf-8"))]
+    # policy.texts[0] is the shipped default policy; a user policy file follows it
+    out += [InputRecord("policy", name, text.encode("utf-8")) for name, text in policy.texts[1:]]
+    magnet = loaded.normalised.get("magnet") or {}
+    for source in model.magnet.sources:
+        if isinstance(source, (AxisTable, FieldMap)):
+            key = "axis_table" if isinstance(source, AxisTable) else "field_map"
+            given = (magnet.get(key) or {}).get("file") or Path(source.path).name
+            data = read_again(("magnet", key, "file"), source.path, "measured field file")
+            out.append(InputRecord("measured axis table" if key == "axis_table"
+                                   else "measured field map", given, data))
+    table = model.exposure.table if model.exposure is not None else None
+    if table is not None and table.origin != "shipped":
+        key = ("exposure", "table_file")
+        path = loaded.path.resolve().parent / table.origin
+        data = read_again(key, path, "site table")
+        record = InputRecord("site exposure table", table.origin, data)
+        if table.sha256 and record.sha256 != table.sha256:
+            raise refused(key, f"the site table {path} changed while the spec was being "
+                               "checked (its SHA-256 differs from the one read first); run "
+                               "again")
+        out.append(record)
+    return tuple(out)
 
 
 def _unused_waivers(policy: Policy, used: list[RuleUse], matched: set[int], applied: set[int],
@@ -252,4 +357,4 @@ def _unused_waivers(policy: Policy, used: list[RuleUse], matched: set[int], appl
     return tuple(out)
 
 
-__all__ = ["Run", "RuleUse", "VERDICTS", "run"]
+__all__ = ["INPUT_ROLES", "InputRecord", "Run", "RuleUse", "VERDICTS", "input_files", "run"]

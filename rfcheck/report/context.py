@@ -2,8 +2,10 @@
 
 from __future__ import annotations
 
+from pathlib import PurePath
+
 from rfcheck import __version__
-from rfcheck.run import RULESET_VERSION
+from rfcheck.run import RULESET_VERSION, InputRecord
 from rfcheck.findings import Finding, Status
 
 FAMILY_TITLES = {
@@ -29,6 +31,67 @@ VERDICT_TEXT = {
     "not-evaluated": "The design was not reviewed: no requirement was evaluated over the declared "
                      "envelope (see the reasons below). This is not a pass.",
 }
+
+
+#: name of the results attachment
+RESULTS_ATTACHMENT = "rfcheck-results.json"
+#: attachment name of each kind of input file: a prefix before the file's base name
+_ATTACHMENT_PREFIX = {"specification": "", "policy": "policy-", "measured axis table": "axis-table-",
+                      "measured field map": "field-map-", "site exposure table": "site-table-"}
+#: how many hex digits of an input file's SHA-256 the cover shows (the appendix shows all)
+HASH_PREFIX = 16
+
+
+def policy_attachment_name(name: str) -> str:
+    return f"policy-{name}" if name.endswith(".toml") else f"policy-{name}.toml"
+
+
+def _distinct(name: str, taken: set[str]) -> str:
+    """`name`, or `name` with -2, -3 … before its extension, whichever is not taken yet
+    (compared without case: the files may be extracted on a case-insensitive system)."""
+    stem, dot, ext = name.rpartition(".")
+    if not dot or not stem:
+        stem, dot, ext = name, "", ""
+    candidate, k = name, 2
+    while candidate.casefold() in taken:
+        candidate, k = f"{stem}-{k}{dot}{ext}", k + 1
+    taken.add(candidate.casefold())
+    return candidate
+
+
+def input_records(run) -> tuple[InputRecord, ...]:
+    """The run's input files; for a Run built without them, the spec and user policy texts."""
+    if run.inputs:
+        return run.inputs
+    return ((InputRecord("specification", run.spec_file, run.spec_text.encode("utf-8")),)
+            + tuple(InputRecord("policy", n, t.encode("utf-8")) for n, t in run.policy_texts[1:]))
+
+
+def input_attachments(run) -> tuple[list[tuple[InputRecord, str]], str | None]:
+    """(each input file with its attachment name, the shipped default policy's attachment
+    name or None). Names are distinct over the whole PDF, even for files that share a base
+    name: the results and the default policy keep theirs, then each file in order gets its
+    role's prefix and its base name, numbered where that is taken."""
+    taken = {RESULTS_ATTACHMENT.casefold()}
+    default = None
+    if run.policy_texts and run.policy_texts[0][0] == "default":
+        default = _distinct(policy_attachment_name("default"), taken)
+    out = []
+    for rec in input_records(run):
+        base = PurePath(rec.file).name or rec.role.replace(" ", "-")
+        name = (policy_attachment_name(base) if rec.role == "policy"
+                else _ATTACHMENT_PREFIX.get(rec.role, "") + base)
+        out.append((rec, _distinct(name, taken)))
+    return out, default
+
+
+def _input_rows(run) -> list[dict]:
+    rows = []
+    for rec, name in input_attachments(run)[0]:
+        rows.append({"role": rec.role, "file": rec.file, "bytes": rec.size,
+                     "size": f"{rec.size:,} B".replace(",", "\u2009"), "sha256": rec.sha256,
+                     "sha256_prefix": rec.sha256[:HASH_PREFIX], "attachment": name})
+    return rows
 
 
 def _finding_row(f: Finding) -> dict:
@@ -121,7 +184,8 @@ def build(run, figures: list[dict] | None = None) -> dict:
         "counts": run.counts(),
         "fingerprint": {"spec_file": run.spec_file, "spec_sha256": run.spec_sha256,
                         "policy_name": run.policy_name, "policy_sha256": run.policy_sha256,
-                        "tool_version": __version__, "ruleset": RULESET_VERSION},
+                        "tool_version": __version__, "ruleset": RULESET_VERSION,
+                        "inputs": _input_rows(run), "hash_prefix": HASH_PREFIX},
         "sections": sections,
         "attention": attention,
         "characteristics": _characteristic_rows(run.characteristics),

@@ -1,4 +1,5 @@
-"""HTML (jinja2) → archival PDF/A-3 (weasyprint) with the spec, policy and results attached."""
+"""HTML (jinja2) → archival PDF/A-3 (weasyprint) with every input file, the default policy and
+the results attached (byte for byte what was checked)."""
 
 from __future__ import annotations
 
@@ -66,18 +67,21 @@ def render_pdf(run) -> bytes:
 
     html = render_html(run)
     results = json.dumps(run.to_json(), indent=2, allow_nan=False)
+    inputs, default_policy = report_context.input_attachments(run)
     attachments = [
-        weasyprint.Attachment(string=run.spec_text, name=run.spec_file,
-                              description="source specification as checked",
-                              created=_EPOCH, modified=_EPOCH, relationship="Source"),
-        weasyprint.Attachment(string=results, name="rfcheck-results.json",
-                              description="results (rfcheck-run/1 JSON)",
-                              created=_EPOCH, modified=_EPOCH, relationship="Data"),
-    ]
-    for name, text in run.policy_texts:
+        weasyprint.Attachment(string=rec.data, name=name, description=f"input file: {rec.role} "
+                              f"({rec.file}), as checked", created=_EPOCH, modified=_EPOCH,
+                              relationship="Source")
+        for rec, name in inputs]
+    attachments.append(weasyprint.Attachment(
+        string=results, name=report_context.RESULTS_ATTACHMENT,
+        description="results (rfcheck-run/1 JSON)", created=_EPOCH, modified=_EPOCH,
+        relationship="Data"))
+    if default_policy is not None:
         attachments.append(weasyprint.Attachment(
-            string=text, name=f"policy-{name}.toml" if not name.endswith(".toml") else f"policy-{name}",
-            description="review policy", created=_EPOCH, modified=_EPOCH, relationship="Source"))
+            string=run.policy_texts[0][1], name=default_policy,
+            description="review policy: the shipped defaults", created=_EPOCH, modified=_EPOCH,
+            relationship="Source"))
     doc = weasyprint.HTML(string=html, base_url=templates_dir().as_uri() + "/",
                           url_fetcher=_fetcher())
     return doc.write_pdf(pdf_variant="pdf/a-3b", attachments=attachments, pdf_identifier=True,
