@@ -78,14 +78,22 @@ class Coverage:
 MAX_ROWS = 250_000
 
 
-def _data_lines(path: Path):
-    """Yield (line number, text) of non-blank, non-comment lines."""
+def read_text(path: str | Path) -> tuple[str, bytes]:
+    """The text and bytes of a measured file, through the guards of rfcheck.inputfiles."""
     from rfcheck.inputfiles import InputFileError, read_input
 
     try:
-        text = read_input(path, "measured field file").text
+        got = read_input(path, "measured field file")
     except InputFileError as exc:
         raise MeasuredDataError(path, None, exc.message) from None
+    return got.text, got.data
+
+
+def _data_lines(path: Path, text: str | None = None):
+    """Yield (line number, text) of non-blank, non-comment lines (of `text` if given, else of
+    the file read through :func:`read_text`)."""
+    if text is None:
+        text, _ = read_text(path)
     if text.startswith("\ufeff"):
         text = text[1:]
     # only \n (and \r\n) end a line: the line numbers of messages match what editors show
@@ -149,10 +157,11 @@ def _parse_header(path: Path, line: int, cells: list[str], accepted: dict[str, s
     return names, scales
 
 
-def _read_columns(path: str | Path, accepted: dict[str, str], required: tuple[str, ...]):
+def _read_columns(path: str | Path, accepted: dict[str, str], required: tuple[str, ...],
+                  text: str | None = None):
     """Read the CSV into SI columns; returns ({name: array}, line numbers array)."""
     path = Path(path)
-    lines = _data_lines(path)
+    lines = _data_lines(path, text)
     try:
         header_line, header = next(lines)
     except StopIteration:
@@ -204,13 +213,13 @@ def _read_columns(path: str | Path, accepted: dict[str, str], required: tuple[st
 # --------------------------------------------------------------------------- readers
 
 
-def read_axis_table(path: str | Path) -> tuple[np.ndarray, np.ndarray]:
+def read_axis_table(path: str | Path, text: str | None = None) -> tuple[np.ndarray, np.ndarray]:
     """Read a measured on-axis field table; returns (z in m ascending, B_z in T).
 
     The table must hold at least :data:`MIN_POINTS` rows and z must be strictly monotonic
     (a descending file is reversed). Raises :class:`MeasuredDataError`.
     """
-    path, cols, lines = _read_columns(path, _TABLE_COLUMNS, ("z", "B"))
+    path, cols, lines = _read_columns(path, _TABLE_COLUMNS, ("z", "B"), text)
     z, b = cols["z"], cols["B"]
     if len(z) < MIN_POINTS:
         raise MeasuredDataError(
@@ -229,14 +238,15 @@ def read_axis_table(path: str | Path) -> tuple[np.ndarray, np.ndarray]:
     return z.copy(), b.copy()
 
 
-def read_field_map(path: str | Path) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+def read_field_map(path: str | Path, text: str | None = None
+                   ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """Read a measured 2-D axisymmetric map (long format); returns (r, z, br, bz) in m and T.
 
     r and z ascending; br and bz shaped (len(r), len(z)). The rows must form a full
     rectilinear grid with at least :data:`MIN_POINTS` distinct values of r and of z, and no
     negative r. Raises :class:`MeasuredDataError`.
     """
-    path, cols, lines = _read_columns(path, _MAP_COLUMNS, ("r", "z", "Br", "Bz"))
+    path, cols, lines = _read_columns(path, _MAP_COLUMNS, ("r", "z", "Br", "Bz"), text)
     r_all, z_all = cols["r"], cols["z"]
     if len(r_all) == 0:
         raise MeasuredDataError(path, None, "the map has no data rows")

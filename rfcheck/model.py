@@ -188,6 +188,7 @@ class AxisTable:
     z: tuple[float, ...]
     b: tuple[float, ...]
     scales_with_current: bool = True
+    sha256: str = ""  # of the bytes parsed (the fingerprint must match them)
 
 
 @dataclass(frozen=True)
@@ -204,6 +205,7 @@ class FieldMap:
     br: tuple[tuple[float, ...], ...]
     bz: tuple[tuple[float, ...], ...]
     scales_with_current: bool = True
+    sha256: str = ""  # of the bytes parsed (the fingerprint must match them)
 
 
 MagnetSource = Coil | RingMagnet | Multipole | UniformField | AxisTable | FieldMap

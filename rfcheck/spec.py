@@ -839,24 +839,29 @@ class _CrossCheck:
         return out
 
     def _measured(self, key: str, meas: MeasuredSpec):
-        from rfcheck.measured import MeasuredDataError, check_coverage, read_axis_table, read_field_map
+        import hashlib
+
+        from rfcheck.measured import (MeasuredDataError, check_coverage, read_axis_table,
+                                      read_field_map, read_text)
 
         file = (self.path.parent / meas.file).resolve()
         c = self.spec.chamber
         chamber = m.Chamber(c.radius, c.z.start, c.z.end)
         try:
+            text, data = read_text(file)
+            sha = hashlib.sha256(data).hexdigest()
             if key == "axis_table":
-                z, b = read_axis_table(file)
+                z, b = read_axis_table(file, text)
                 coverage = check_coverage(z, chamber)
                 source = m.AxisTable(meas.id, str(file), tuple(map(float, z)),
-                                     tuple(map(float, b)), meas.scales_with_current)
+                                     tuple(map(float, b)), meas.scales_with_current, sha)
             else:
-                r, z, br, bz = read_field_map(file)
+                r, z, br, bz = read_field_map(file, text)
                 coverage = check_coverage(z, chamber, r)
                 source = m.FieldMap(meas.id, str(file), tuple(map(float, r)), tuple(map(float, z)),
                                     tuple(tuple(map(float, row)) for row in br),
                                     tuple(tuple(map(float, row)) for row in bz),
-                                    meas.scales_with_current)
+                                    meas.scales_with_current, sha)
         except MeasuredDataError as exc:
             self.fail(("magnet", key, "file"), str(exc))
             return None

@@ -211,6 +211,19 @@ def test_a_site_table_changed_after_loading_is_refused_not_fingerprinted(tmp_pat
     assert "changed" in p.message
 
 
+def test_a_measured_file_rewritten_after_loading_is_refused_not_fingerprinted(tmp_path):
+    spec, text = _axis_case(tmp_path)
+    loaded = load_spec(spec)
+    csv = tmp_path / "axis.csv"
+    csv.write_bytes(csv.read_bytes() + b"# edited after loading\n")
+    with pytest.raises(InputError) as info:
+        run(loaded, load_policy(None))
+    (p,) = info.value.problems
+    assert p.path == "magnet.axis_table.file"
+    assert p.line == _line_of(text, "axis_table =")
+    assert "changed" in p.message
+
+
 def test_attachment_names_are_distinct_without_regard_to_case():
     taken: set[str] = set()
     got = [_distinct(n, taken) for n in ("field.csv", "Field.csv", "field.csv", "README")]
