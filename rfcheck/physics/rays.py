@@ -1,0 +1,297 @@
+"""Cold-plasma geometric-optics rays in 3-D (Hamiltonian ray tracing).
+
+A ray of the labelled branch ``mode`` ("R", "L", "O", "X", as in
+:func:`rfcheck.physics.coldplasma.n2_branch`) at frequency f follows
+
+    dr/dτ = ∂H/∂N,      dN/dτ = −∂H/∂r,      ds/dτ = |∂H/∂N|,
+
+with H(r, N) = N·N − n²(f, |B(r)|, n_e(r), θ(N, B(r))), N = c k / ω the refractive-index
+vector, θ the angle between N and B, τ the Hamiltonian ray parameter and s the arc length along
+the ray (m). This is dr/dt = ∂D/∂k, dk/dt = −∂D/∂r (Stix 1992, ch. 4; Swanson 2003, ch. 5;
+Bellan 2006, ch. 5) with the parameter rescaled by ω/c; integrating in τ rather than in s keeps
+the equations smooth through a turning point at normal incidence, where |∂H/∂N| → 0.
+H = 0 is the dispersion relation; the integrator holds it to its tolerance and the largest
+|H| / max(1, N·N) met along the ray is returned (``residual``) so a caller can see how well
+it held.
+
+Derivatives: ∂H/∂N and ∂H/∂r by central differences (n² is a closed form of the dispersion
+core, smooth away from cutoffs and resonances); one call of ``b_field`` and of ``density`` per
+right-hand side evaluation, on the 7 points r, r ± h e_i.
+
+Power: with a collision frequency ν, the remaining power fraction obeys dP/ds = −α P with
+α = 2 (ω/c) Im√(n²_ν) |N̂·ŝ| (weak damping: the imaginary part of k along the ray direction
+ŝ; Stix 1992 ch. 4, Swanson 2003 ch. 5), n²_ν the same branch with collisions.
+
+Where the ray ends (``stop``):
+
+* ``"max_length"``: the arc length reached ``max_length``;
+* ``"wall"``: ``inside(r)`` (positive inside the plasma vessel) fell to zero;
+* ``"resonance"``: |N| reached ``n_max`` (a cyclotron or hybrid resonance: the wavelength
+  shrinks to zero and geometric optics ends there; the power still carried is deposited at
+  the resonance by a kinetic process the cold ray does not describe);
+* ``"absorbed"``: the remaining power fell below ``power_floor``;
+* ``"returned"``: the ray came back through the launch plane (the plane through ``start``
+  normal to ``direction``): a reflection out of the plasma;
+* ``"evanescent_start"``: the branch does not propagate at the start point (n² ≤ 0);
+* ``"step_failure"``: the integrator could not continue (reported, never hidden).
+
+Validity: ``go_parameter`` holds 1/(k L) along the path, L = n²/|∇n²| the scale length of the
+refractive index; geometric optics needs it small (≲ 0.1; it grows without bound at a cutoff,
+where the full-wave solution of :mod:`rfcheck.physics.fullwave` applies on the axis).
+
+References
+----------
+T.H. Stix, *Waves in Plasmas* (AIP, 1992), ch. 4 (rays and energy flow).
+D.G. Swanson, *Plasma Waves*, 2nd ed. (IOP, 2003), ch. 5 (ray tracing).
+P.M. Bellan, *Fundamentals of Plasma Physics* (CUP, 2006), ch. 5 (WKB, rays).
+V.L. Ginzburg, *The Propagation of Electromagnetic Waves in Plasmas* (Pergamon, 1970), the
+ray in a linear layer (turning point and displacement; checked in the tests).
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable
+from dataclasses import dataclass
+
+import numpy as np
+
+from rfcheck.physics.coldplasma import n2_branch
+from rfcheck.physics.constants import C as C_LIGHT
+from rfcheck.physics.domain import check_index, guard_public
+
+__all__ = ["Ray", "trace_ray", "STOPS"]
+
+#: every reason a ray can end (see the module docstring)
+STOPS = ("max_length", "wall", "resonance", "absorbed", "returned", "evanescent_start",
+         "step_failure")
+
+_OFFSETS = np.vstack([np.zeros(3), np.eye(3), -np.eye(3)])  # r, r + h e_i, r − h e_i
+
+
+@dataclass(frozen=True)
+class Ray:
+    """One traced ray; arrays have one row per output point along the arc length ``s``."""
+
+    s: np.ndarray                  # (M,) arc length, m
+    path: np.ndarray               # (M, 3) positions, m
+    refractive_index: np.ndarray   # (M, 3) N vectors
+    power: np.ndarray              # (M,) remaining power fraction
+    go_parameter: np.ndarray       # (M,) 1/(k L): geometric optics needs it small
+    stop: str                      # why the ray ended (one of STOPS)
+    residual: float                # largest |N·N − n²| / max(1, N·N) met along the ray
+    mode: str
+    frequency: float
+
+    @property
+    def end(self) -> np.ndarray:
+        return self.path[-1]
+
+
+def _unit(v: np.ndarray) -> np.ndarray:
+    norm = float(np.linalg.norm(v))
+    if not norm > 0 or not math.isfinite(norm):
+        raise ValueError("direction must be a non-zero finite 3-vector")
+    return v / norm
+
+
+def trace_ray(frequency: float, start, direction, mode: str,
+              b_field: Callable[[np.ndarray], np.ndarray],
+              density: Callable[[np.ndarray], np.ndarray], *,
+              max_length: float, ions=(), collision_frequency: float = 0.0,
+              inside: Callable[[np.ndarray], np.ndarray] | None = None,
+              n_max: float = 100.0, power_floor: float = 1e-4, rtol: float = 1e-9,
+              max_step: float | None = None, max_evaluations: int = 200_000,
+              h_position: float = 1e-6, h_index: float = 1e-7) -> Ray:
+    """Trace one cold-plasma ray of branch `mode` from `start` along `direction`.
+
+    Parameters
+    ----------
+    frequency : float
+        Wave frequency, Hz.
+    start, direction : array_like, shape (3,)
+        Launch point (m) and direction of the wave vector there (any length).
+    mode : {"R", "L", "O", "X"}
+        The branch traced (labels of :func:`rfcheck.physics.coldplasma.n2_branch`).
+    b_field : callable
+        ``b_field(points)`` → (N, 3) magnetic field in T at (N, 3) positions in m.
+    density : callable
+        ``density(points)`` → (N,) electron density in m^-3.
+    max_length : float
+        Longest arc length traced, m.
+    ions, collision_frequency
+        As for :func:`rfcheck.physics.coldplasma.stix` (ν in s^-1, a number).
+    inside : callable, optional
+        ``inside(points)`` → (N,) positive inside the vessel, zero on its wall.
+    n_max : float
+        |N| at which the ray is said to have reached a resonance.
+    power_floor : float
+        Remaining power fraction at which the ray is said to be absorbed.
+    rtol : float
+        Relative tolerance of the integrator (scipy's DOP853).
+    max_step : float, optional
+        Largest integration step, m (default max_length / 50).
+    max_evaluations : int
+        Bound on right-hand-side evaluations (the work of one ray).
+    h_position, h_index : float
+        Central-difference steps in position (m) and in N (relative).
+    """
+    from scipy.integrate import solve_ivp
+
+    f = float(frequency)
+    if not (math.isfinite(f) and f > 0):
+        raise ValueError("frequency must be a positive finite number (Hz)")
+    if not (math.isfinite(max_length) and max_length > 0):
+        raise ValueError("max_length must be a positive finite length (m)")
+    key = str(mode).upper()
+    if key not in ("R", "L", "O", "X"):
+        raise ValueError(f"mode must be one of 'R', 'L', 'O', 'X', got {mode!r}")
+    check_index("max_evaluations", max_evaluations, 1, 10_000_000)
+    r0 = np.asarray(start, dtype=float).reshape(3)
+    if not np.all(np.isfinite(r0)):
+        raise ValueError("start must be a finite 3-vector (m)")
+    d0 = _unit(np.asarray(direction, dtype=float).reshape(3))
+    omega_c = 2.0 * math.pi * f / C_LIGHT
+    nu = float(collision_frequency)
+    lossy = nu > 0.0
+
+    def medium(points):
+        b = np.asarray(b_field(points), dtype=float).reshape(-1, 3)
+        n = np.asarray(density(points), dtype=float).reshape(-1)
+        return b, np.maximum(n, 0.0)
+
+    def n2(bvec, n_e, nvec, nu_=0.0):
+        """n² of the branch for field vectors, densities and N vectors (broadcast rows)."""
+        bmag = np.linalg.norm(bvec, axis=-1)
+        nmag = np.linalg.norm(nvec, axis=-1)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            cos = np.einsum("...i,...i->...", bvec, nvec) / (bmag * nmag)
+        cos = np.where(np.isfinite(cos), np.clip(np.abs(cos), 0.0, 1.0), 1.0)
+        theta = np.arccos(cos)
+        return n2_branch(f, bmag, n_e, theta, key, ions, nu_)
+
+    evaluations = [0]
+
+    def gradients(r, nvec):
+        """H and its gradients at one point (7 medium points, 7 + 6 branch evaluations)."""
+        evaluations[0] += 1
+        pts = r + h_position * _OFFSETS
+        b, n_e = medium(pts)
+        hn = h_index * max(float(np.linalg.norm(nvec)), 1.0)
+        nrows = np.vstack([np.repeat(nvec[None, :], 7, axis=0),
+                           nvec + hn * np.eye(3), nvec - hn * np.eye(3)])
+        brows = np.vstack([b, np.repeat(b[:1], 6, axis=0)])
+        erows = np.concatenate([n_e, np.repeat(n_e[:1], 6)])
+        n2v = np.real(n2(brows, erows, nrows))
+        h0 = float(nvec @ nvec - n2v[0])
+        dn2_dr = (n2v[1:4] - n2v[4:7]) / (2.0 * h_position)
+        dn2_dn = (n2v[7:10] - n2v[10:13]) / (2.0 * hn)
+        dh_dr = -dn2_dr
+        dh_dn = 2.0 * nvec - dn2_dn
+        return h0, dh_dr, dh_dn, n2v[0], dn2_dr, b[0], n_e[0]
+
+    def rhs(tau, y):
+        # in the Hamiltonian parameter τ (smooth through a turning point, where |∂H/∂N| → 0);
+        # the arc length s is carried as y[7]
+        r, nvec = y[:3], y[3:6]
+        h0, dh_dr, dh_dn, n2_here, _, b0, ne0 = gradients(r, nvec)
+        speed = float(np.linalg.norm(dh_dn))
+        if not math.isfinite(speed) or not np.all(np.isfinite(dh_dr)):
+            raise _Singular
+        dlnp = 0.0
+        if lossy and speed > 0:
+            n2c = complex(np.asarray(n2(b0[None, :], np.array([ne0]), nvec[None, :], nu)
+                                     ).reshape(-1)[0])
+            k_i = omega_c * abs(np.sqrt(n2c).imag)
+            nhat = nvec / max(float(np.linalg.norm(nvec)), 1e-300)
+            dlnp = -2.0 * k_i * abs(float(nhat @ dh_dn))
+        return np.concatenate([dh_dn, -dh_dr, [dlnp, speed]])
+
+    # the wave vector at the start: on the branch's dispersion surface
+    b_start, ne_start = medium(r0[None, :])
+    n2_start = float(np.real(n2(b_start, ne_start, d0[None, :])).reshape(-1)[0])
+    if not (n2_start > 0 and math.isfinite(n2_start)):
+        nvec0 = d0 * 0.0
+        return Ray(np.array([0.0]), r0[None, :].copy(), nvec0[None, :], np.array([1.0]),
+                   np.array([math.inf]), "evanescent_start", 0.0, key, f)
+    nvec0 = d0 * math.sqrt(n2_start)
+
+    def ev_resonance(s, y):
+        return n_max - float(np.linalg.norm(y[3:6]))
+
+    def ev_absorbed(s, y):
+        return y[6] - math.log(power_floor)
+
+    def ev_returned(s, y):
+        return float((y[:3] - r0) @ d0) + 1e-12 * max_length
+
+    def ev_length(s, y):
+        return float(max_length) - y[7]
+
+    events = [ev_length, ev_resonance, ev_absorbed, ev_returned]
+    names = ["max_length", "resonance", "absorbed", "returned"]
+    if inside is not None:
+        def ev_wall(s, y):
+            return float(np.asarray(inside(y[None, :3])).reshape(-1)[0])
+        events.append(ev_wall)
+        names.append("wall")
+    for ev in events:
+        ev.terminal = True
+        ev.direction = -1
+
+    class _Singular(Exception):
+        pass
+
+    class _Stop(Exception):
+        pass
+
+    seen: list[tuple[float, np.ndarray]] = []
+
+    def bounded_rhs(tau, y):
+        if evaluations[0] >= max_evaluations:
+            raise _Stop
+        if len(seen) < 4096 or evaluations[0] % 16 == 0:
+            seen.append((tau, y.copy()))
+        try:
+            return rhs(tau, y)
+        except _Singular:
+            raise _Stop from None
+
+    y0 = np.concatenate([r0, nvec0, [0.0, 0.0]])
+    stop = "max_length"
+    # τ advances about s / (2|N|): its span is bounded by the length event and the budget
+    step = float(max_step or max_length / 50.0) / (2.0 * max(1.0, math.sqrt(n2_start)))
+    try:
+        sol = solve_ivp(bounded_rhs, (0.0, 1e6 * float(max_length)), y0, method="DOP853",
+                        rtol=rtol, atol=rtol * 1e-3, events=events, dense_output=False,
+                        max_step=step)
+        ys = sol.y.T
+        if sol.status == 1:
+            hit = [i for i, t in enumerate(sol.t_events) if len(t)]
+            stop = names[hit[0]] if hit else "max_length"
+            if hit:  # the event point closes the path
+                ys = np.vstack([ys, sol.y_events[hit[0]][0]])
+        elif sol.status < 0:
+            stop = "step_failure"
+        else:
+            stop = "step_failure"  # τ span exhausted without reaching any end: never silent
+    except _Stop:
+        # the budget ran out or the medium became singular: keep the path traced so far
+        stop = "step_failure"
+        seen.sort(key=lambda item: item[0])
+        ys = np.vstack([y0] + [y for _, y in seen])
+    ss = ys[:, 7]
+
+    path, nvecs = ys[:, :3], ys[:, 3:6]
+    power = np.exp(ys[:, 6])
+    residual, go = 0.0, np.empty(len(ss))
+    for i in range(len(ss)):
+        h0, _, _, n2_here, dn2_dr, _, _ = gradients(path[i], nvecs[i])
+        residual = max(residual, abs(h0) / max(1.0, float(nvecs[i] @ nvecs[i])))
+        k = omega_c * math.sqrt(max(n2_here, 1e-300))
+        scale = abs(n2_here) / max(float(np.linalg.norm(dn2_dr)), 1e-300)
+        go[i] = 1.0 / (k * scale) if scale > 0 else math.inf
+    return Ray(ss, path, nvecs, power, go, stop, residual, key, f)
+
+
+guard_public(globals())
