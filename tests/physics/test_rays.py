@@ -174,3 +174,29 @@ def test_the_work_of_one_ray_is_bounded():
     ray = trace_ray(F, [0.0, 0.0, 0.0], [0.0, 0.0, 1.0], "O", no_field, vacuum,
                     max_length=10.0, max_step=1e-4, max_evaluations=50)
     assert ray.stop == "step_failure"
+
+
+def test_beam_samples_carry_the_gaussian_power_shares():
+    # TEM00 intensity exp(−2ρ²/w²): the disc ρ ≤ 2w holds 1 − e^−8 of the power and the
+    # power-weighted mean ρ² is w²/2 (Siegman, Lasers, ch. 17; closed forms)
+    from rfcheck.physics.rays import beam_samples
+
+    w = 0.01
+    points, shares = beam_samples([0.0, 0.0, 0.1], [0.0, 0.0, 1.0], w, rings=4, per_ring=12)
+    assert shares.sum() == pytest.approx(1.0 - math.exp(-8.0), rel=1e-12)
+    np.testing.assert_allclose(points[:, 2], 0.1)  # all on the waist plane
+    rho2 = (shares * (points[:, 0] ** 2 + points[:, 1] ** 2)).sum() / shares.sum()
+    assert rho2 == pytest.approx(w**2 / 2, rel=0.05)
+
+
+def test_a_beam_into_an_overdense_layer_is_returned_whole():
+    # O wave at normal incidence on a layer rising past X = 1: every ray turns (P = 0 at
+    # X = 1, Stix 1992 ch. 1) and comes back, so the returned share is the sampled share
+    from rfcheck.physics.rays import trace_beam
+
+    beam = trace_beam(F, [0.0, 0.0, 0.0], [1.0, 0.0, 0.0], 0.02, "O", no_field,
+                      lambda p: NC * np.clip(p[:, 0] / 0.05, 0.0, None), rings=2, per_ring=6,
+                      max_length=0.5, max_step=1e-3)
+    assert beam.share("returned") == pytest.approx(beam.sampled_share, rel=1e-12)
+    for ray in beam.rays:
+        assert ray.path[:, 0].max() == pytest.approx(0.05, abs=1e-4)
