@@ -33,6 +33,7 @@ Where the ray ends (``stop``):
 * ``"returned"``: the ray came back through the launch plane (the plane through ``start``
   normal to ``direction``): a reflection out of the plasma;
 * ``"evanescent_start"``: the branch does not propagate at the start point (n² ≤ 0);
+* ``"cyclotron_layer"`` (bundles, when asked): |B| reached the edge of a cyclotron layer;
 * ``"step_failure"``: the integrator could not continue (reported, never hidden).
 
 Validity: ``go_parameter`` holds 1/(k L) along the path, L = n²/|∇n²| the scale length of the
@@ -60,11 +61,11 @@ from rfcheck.physics.coldplasma import n2_branch
 from rfcheck.physics.constants import C as C_LIGHT
 from rfcheck.physics.domain import check_index, guard_public
 
-__all__ = ["Ray", "Beam", "trace_ray", "trace_beam", "beam_samples", "STOPS"]
+__all__ = ["Ray", "Beam", "trace_ray", "trace_rays", "trace_beam", "beam_samples", "STOPS"]
 
 #: every reason a ray can end (see the module docstring)
 STOPS = ("max_length", "wall", "resonance", "absorbed", "returned", "evanescent_start",
-         "step_failure")
+         "cyclotron_layer", "step_failure")
 
 _OFFSETS = np.vstack([np.zeros(3), np.eye(3), -np.eye(3)])  # r, r + h e_i, r − h e_i
 
@@ -93,6 +94,22 @@ def _unit(v: np.ndarray) -> np.ndarray:
     if not norm > 0 or not math.isfinite(norm):
         raise ValueError("direction must be a non-zero finite 3-vector")
     return v / norm
+
+
+def _diagnostics(n2, medium, path, nvecs, omega_c: float, h: float) -> tuple[float, np.ndarray]:
+    """(residual, go_parameter) along a path: the largest |N·N − n²| / max(1, N·N) and
+    1/(k L) with L = n²/|∇n²| (one medium call on 7 points per path point)."""
+    pts = (path[:, None, :] + h * _OFFSETS[None, :, :]).reshape(-1, 3)
+    b, n_e = medium(pts)
+    rows = np.repeat(nvecs, 7, axis=0)
+    v = np.real(np.asarray(n2(b, n_e, rows))).reshape(-1, 7)
+    nn = np.einsum("ij,ij->i", nvecs, nvecs)
+    residual = float(np.max(np.abs(nn - v[:, 0]) / np.maximum(1.0, nn)))
+    grad = np.linalg.norm((v[:, 1:4] - v[:, 4:7]) / (2.0 * h), axis=1)
+    k = omega_c * np.sqrt(np.maximum(v[:, 0], 1e-300))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        go = np.where(grad > 0, grad / (k * np.abs(v[:, 0])), 0.0)
+    return residual, np.where(np.isfinite(go), go, np.inf)
 
 
 def trace_ray(frequency: float, start, direction, mode: str,
@@ -284,13 +301,7 @@ def trace_ray(frequency: float, start, direction, mode: str,
 
     path, nvecs = ys[:, :3], ys[:, 3:6]
     power = np.exp(ys[:, 6])
-    residual, go = 0.0, np.empty(len(ss))
-    for i in range(len(ss)):
-        h0, _, _, n2_here, dn2_dr, _, _ = gradients(path[i], nvecs[i])
-        residual = max(residual, abs(h0) / max(1.0, float(nvecs[i] @ nvecs[i])))
-        k = omega_c * math.sqrt(max(n2_here, 1e-300))
-        scale = abs(n2_here) / max(float(np.linalg.norm(dn2_dr)), 1e-300)
-        go[i] = 1.0 / (k * scale) if scale > 0 else math.inf
+    residual, go = _diagnostics(n2, medium, path, nvecs, omega_c, h_position)
     return Ray(ss, path, nvecs, power, go, stop, residual, key, f)
 
 
@@ -352,13 +363,207 @@ def beam_samples(waist_position, direction, waist: float, *, rings: int = 3,
     return np.array(points), np.array(shares)
 
 
+def trace_rays(frequency: float, starts, directions, mode: str, b_field, density, *,
+               max_length: float, ions=(), collision_frequency: float = 0.0,
+               inside=None, n_max: float = 100.0, power_floor: float = 1e-4,
+               rtol: float = 1e-8, max_step: float | None = None,
+               max_evaluations: int = 20_000, h_position: float = 1e-6,
+               h_index: float = 1e-7, cyclotron_field: float | None = None,
+               cyclotron_band: float = 1e-3) -> tuple[Ray, ...]:
+    """Trace a bundle of K rays together, one field and one density call per step for all.
+
+    The same equations and stops as :func:`trace_ray`, integrated as one system: a ray whose
+    state meets a stop (|N| ≥ n_max, power below the floor, back through its launch plane,
+    outside the wall, arc length ≥ max_length) is frozen there (its derivatives are zero, so its
+    state keeps meeting the stop), and its end is interpolated back onto the stop between the
+    last two steps. Use it where a call of ``b_field`` costs more than the arithmetic (a
+    magnet model); for one ray, :func:`trace_ray` locates the end exactly.
+
+    `cyclotron_field` (T, e.g. the ECR field of the feed): a ray also ends (``"cyclotron_layer"``)
+    where |B| comes within the relative band `cyclotron_band` of it (on the side it starts).
+    Close to the layer the cold R branch turns its N towards B and |N| grows without bound
+    while the ray slows (the cold resonance, exactly at Y = 1 only along B); the band stops it
+    at the layer's edge in a bounded number of steps, where the kinetic absorption of
+    :mod:`rfcheck.physics.absorption` takes over (Doppler-broadened layers are wider than
+    the default band of 1e-3 in |B| for any electron temperature above a few eV).
+    """
+    from scipy.integrate import solve_ivp
+
+    f = float(frequency)
+    if not (math.isfinite(f) and f > 0):
+        raise ValueError("frequency must be a positive finite number (Hz)")
+    if not (math.isfinite(max_length) and max_length > 0):
+        raise ValueError("max_length must be a positive finite length (m)")
+    key = str(mode).upper()
+    if key not in ("R", "L", "O", "X"):
+        raise ValueError(f"mode must be one of 'R', 'L', 'O', 'X', got {mode!r}")
+    check_index("max_evaluations", max_evaluations, 1, 10_000_000)
+    r0 = np.asarray(starts, dtype=float).reshape(-1, 3)
+    d0 = np.asarray(directions, dtype=float).reshape(-1, 3)
+    if d0.shape[0] == 1 and r0.shape[0] > 1:
+        d0 = np.repeat(d0, r0.shape[0], axis=0)
+    if d0.shape != r0.shape:
+        raise ValueError("starts and directions must both be (K, 3) (or one direction)")
+    check_index("number of rays", r0.shape[0], 1, 10_000)
+    if not (np.all(np.isfinite(r0)) and np.all(np.isfinite(d0))):
+        raise ValueError("starts and directions must be finite")
+    norms = np.linalg.norm(d0, axis=1)
+    if not np.all(norms > 0):
+        raise ValueError("every direction must be a non-zero 3-vector")
+    d0 = d0 / norms[:, None]
+    k_rays = r0.shape[0]
+    omega_c = 2.0 * math.pi * f / C_LIGHT
+    nu = float(collision_frequency)
+
+    def n2(bvec, n_e, nvec, nu_=0.0):
+        bmag = np.linalg.norm(bvec, axis=-1)
+        nmag = np.linalg.norm(nvec, axis=-1)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            cos = np.einsum("...i,...i->...", bvec, nvec) / (bmag * nmag)
+        cos = np.where(np.isfinite(cos), np.clip(np.abs(cos), 0.0, 1.0), 1.0)
+        return n2_branch(f, bmag, n_e, np.arccos(cos), key, ions, nu_)
+
+    def medium(points):
+        b = np.asarray(b_field(points), dtype=float).reshape(-1, 3)
+        n = np.asarray(density(points), dtype=float).reshape(-1)
+        return b, np.maximum(n, 0.0)
+
+    b_s, n_s = medium(r0)
+    n2_s = np.real(np.asarray(n2(b_s, n_s, d0))).reshape(-1)
+    alive = (n2_s > 0) & np.isfinite(n2_s)
+    nvec0 = d0 * np.sqrt(np.where(alive, n2_s, 0.0))[:, None]
+    log_floor = math.log(power_floor)
+    evaluations = [0]
+
+    side = (np.sign(np.linalg.norm(b_s, axis=1) - cyclotron_field)
+            if cyclotron_field is not None else None)
+
+    def stopped(y, origin=r0, toward=d0, bmag=None, side_=None):
+        r, nv, lnp, s_ = y[:, :3], y[:, 3:6], y[:, 6], y[:, 7]
+        out = np.full(len(y), "", dtype=object)
+        # each condition carries a small slack: a frozen ray's stages straddle its stop, so
+        # without it the accepted state would creep towards the stop without ever meeting it
+        tol = 1e-9 * max_length
+        conditions = [("max_length", s_ - max_length + tol),
+                      ("resonance", np.linalg.norm(nv, axis=1) - n_max + 1e-9 * n_max),
+                      ("absorbed", log_floor - lnp + 1e-9),
+                      ("returned", -((r - origin) @ toward if origin.ndim == 1 else
+                                     np.einsum("ij,ij->i", r - origin, toward))
+                       - 1e-12 * max_length)]
+        if inside is not None:
+            conditions.append(("wall", 1e-12 * max_length
+                               - np.asarray(inside(r), dtype=float).reshape(-1)))
+        if cyclotron_field is not None:
+            if bmag is None:
+                bmag = np.linalg.norm(medium(r)[0], axis=1)
+            sgn = side if side_ is None else side_
+            edge = cyclotron_field * (1.0 + sgn * cyclotron_band)
+            conditions.append(("cyclotron_layer", sgn * (edge - bmag) + 1e-9 * cyclotron_field))
+        for name, g in conditions:
+            out = np.where((out == "") & (g >= 0), name, out)
+        return out, conditions
+
+    class _Budget(Exception):
+        pass
+
+    seen: list[tuple[float, np.ndarray]] = []
+
+    def rhs(tau, flat):
+        evaluations[0] += 1
+        if evaluations[0] > max_evaluations:
+            raise _Budget
+        if len(seen) < 4096 or evaluations[0] % 16 == 0:
+            seen.append((tau, flat.copy()))
+        y = flat.reshape(k_rays, 8)
+        dy = np.zeros_like(y)
+        stop_now, _ = stopped(y)
+        act = np.nonzero(alive & (stop_now == ""))[0]
+        if act.size == 0:
+            return dy.reshape(-1)
+        r, nv = y[act, :3], y[act, 3:6]
+        pts = (r[:, None, :] + h_position * _OFFSETS[None, :, :]).reshape(-1, 3)
+        b, n_e = medium(pts)
+        b, n_e = b.reshape(-1, 7, 3), n_e.reshape(-1, 7)
+        hn = h_index * np.maximum(np.linalg.norm(nv, axis=1), 1.0)
+        eye = np.eye(3)[None, :, :] * hn[:, None, None]
+        nrows = np.concatenate([np.repeat(nv[:, None, :], 7, axis=1), nv[:, None, :] + eye,
+                                nv[:, None, :] - eye], axis=1)            # (A, 13, 3)
+        brows = np.concatenate([b, np.repeat(b[:, :1], 6, axis=1)], axis=1)
+        erows = np.concatenate([n_e, np.repeat(n_e[:, :1], 6, axis=1)], axis=1)
+        v = np.real(np.asarray(n2(brows, erows, nrows)))                  # (A, 13)
+        dn2_dr = (v[:, 1:4] - v[:, 4:7]) / (2.0 * h_position)
+        dn2_dn = (v[:, 7:10] - v[:, 10:13]) / (2.0 * hn[:, None])
+        dh_dn = 2.0 * nv - dn2_dn
+        dh_dr = -dn2_dr
+        speed = np.linalg.norm(dh_dn, axis=1)
+        good = np.isfinite(speed) & np.all(np.isfinite(dh_dr), axis=1)
+        dh_dn[~good], dh_dr[~good], speed[~good] = 0.0, 0.0, 0.0
+        dy[act, :3], dy[act, 3:6], dy[act, 7] = dh_dn, -dh_dr, speed
+        if nu > 0:
+            n2c = np.asarray(n2(b[:, 0], n_e[:, 0], nv, nu))
+            k_i = omega_c * np.abs(np.sqrt(n2c.astype(complex)).imag)
+            nhat = nv / np.maximum(np.linalg.norm(nv, axis=1), 1e-300)[:, None]
+            dy[act, 6] = -2.0 * k_i * np.abs(np.einsum("ij,ij->i", nhat, dh_dn))
+        return dy.reshape(-1)
+
+    y0 = np.concatenate([r0, nvec0, np.zeros((k_rays, 2))], axis=1)
+    step = float(max_step or max_length / 50.0) / (2.0 * max(1.0, float(np.sqrt(n2_s.max()))
+                                                           if np.any(alive) else 1.0))
+
+    def all_done(tau, flat):
+        y = flat.reshape(k_rays, 8)
+        stop_now, _ = stopped(y)
+        return 0.5 - float(np.count_nonzero(alive & (stop_now == "")))
+
+    all_done.terminal = True
+    if np.any(alive):
+        try:
+            sol = solve_ivp(rhs, (0.0, 1e6 * float(max_length)), y0.reshape(-1),
+                            method="DOP853", rtol=rtol, atol=rtol * 1e-3, events=[all_done],
+                            max_step=step)
+            history = sol.y.T.reshape(-1, k_rays, 8)
+        except _Budget:
+            # the budget ran out: keep the states traced so far (rays not ended: step_failure)
+            seen.sort(key=lambda item: item[0])
+            history = np.stack([y0.reshape(-1)] + [y for _, y in seen]).reshape(-1, k_rays, 8)
+    else:
+        history = y0[None, :, :]
+    out = []
+    for i in range(k_rays):
+        if not alive[i]:
+            out.append(Ray(np.array([0.0]), r0[i:i + 1].copy(), np.zeros((1, 3)), np.array([1.0]),
+                           np.array([math.inf]), "evanescent_start", 0.0, key, f))
+            continue
+        ys = history[:, i, :]
+        stops, conds = stopped(ys, r0[i], d0[i], None, None if side is None else side[i])
+        hit = np.nonzero(stops != "")[0]
+        if hit.size:
+            j = int(hit[0])
+            name = str(stops[j])
+            g = dict(conds)[name]
+            if j > 0 and g[j] != g[j - 1]:  # interpolate the end back onto the stop
+                t = float(g[j - 1] / (g[j - 1] - g[j]))
+                ys = np.vstack([ys[:j], ys[j - 1] + t * (ys[j] - ys[j - 1])])
+            else:
+                ys = ys[: j + 1]
+        else:
+            # unique rows only: a ray frozen by the budget repeats its state
+            keep = np.concatenate([[True], np.any(np.diff(ys, axis=0) != 0, axis=1)])
+            ys = ys[keep]
+            name = "step_failure"
+        path, nv = ys[:, :3], ys[:, 3:6]
+        residual, go = _diagnostics(n2, medium, path, nv, omega_c, h_position)
+        out.append(Ray(ys[:, 7].copy(), path.copy(), nv.copy(), np.exp(ys[:, 6]), go, name,
+                       residual, key, f))
+    return tuple(out)
+
+
 def trace_beam(frequency: float, waist_position, direction, waist: float, mode: str,
                b_field, density, *, rings: int = 3, per_ring: int = 8, **options) -> Beam:
-    """Trace a Gaussian beam as a bundle of rays (:func:`beam_samples`, :func:`trace_ray`)."""
+    """Trace a Gaussian beam as a bundle of rays (:func:`beam_samples`, :func:`trace_rays`)."""
     points, shares = beam_samples(waist_position, direction, waist, rings=rings,
                                   per_ring=per_ring)
-    rays = tuple(trace_ray(frequency, p, direction, mode, b_field, density, **options)
-                 for p in points)
+    rays = trace_rays(frequency, points, direction, mode, b_field, density, **options)
     return Beam(rays, shares)
 
 

@@ -200,3 +200,56 @@ def test_a_beam_into_an_overdense_layer_is_returned_whole():
     assert beam.share("returned") == pytest.approx(beam.sampled_share, rel=1e-12)
     for ray in beam.rays:
         assert ray.path[:, 0].max() == pytest.approx(0.05, abs=1e-4)
+
+
+def test_a_bundle_traced_together_matches_the_linear_layer_ray_by_ray():
+    # the same closed form as above (Ginzburg 1970), three launch angles in one integration
+    from rfcheck.physics.rays import trace_rays
+
+    length = 0.1
+    angles = np.radians([10.0, 30.0, 50.0])
+    directions = np.stack([np.cos(angles), 0 * angles, np.sin(angles)], axis=1)
+    rays = trace_rays(F, np.zeros((3, 3)), directions, "O", no_field,
+                      lambda p: NC * np.clip(p[:, 0] / length, 0.0, None), max_length=1.0,
+                      max_step=length / 100, inside=lambda p: p[:, 0] + 1e-9)
+    for theta, ray in zip(angles, rays):
+        assert ray.stop == "wall"
+        assert ray.end[2] == pytest.approx(2 * length * math.sin(2 * theta), rel=1e-5)
+        assert ray.path[:, 0].max() == pytest.approx(length * math.cos(theta) ** 2, rel=1e-4)
+        assert ray.residual < 1e-4
+
+
+def test_a_bundle_with_a_ray_that_cannot_start_and_one_that_runs_out_of_length():
+    from rfcheck.physics.rays import trace_rays
+
+    # X = 2 beyond x = 0.05 m: a ray started there is evanescent (O mode, n² = 1 − X < 0)
+    dens = lambda p: np.where(p[:, 0] > 0.05, 2.0 * NC, 0.0)  # noqa: E731
+    rays = trace_rays(F, [[0.0, 0.0, 0.0], [0.06, 0.0, 0.0]], [[0.0, 0.0, 1.0]], "O", no_field,
+                      dens, max_length=0.2)
+    assert [r.stop for r in rays] == ["max_length", "evanescent_start"]
+    assert rays[0].s[-1] == pytest.approx(0.2, rel=1e-9)
+    assert rays[0].end[2] == pytest.approx(0.2, rel=1e-9)
+
+
+def test_oblique_rays_cross_the_cyclotron_layer_where_the_field_says():
+    # an oblique R-branch ray in cold plasma has finite roots at Y = 1 (n² → 2L + P(1 + cos²θ)
+    # /sin²θ as R, S → ∞; Stix 1992 ch. 1-2) but turns N towards B and slows as it nears the
+    # layer, so a bundle asked for the layer must stop each ray at its band edge: here the
+    # field depends on z only, B = B_ecr (1.5 − z/0.3 m), so the crossing is at z = 0.15 m;
+    # a tenuous plasma (X = 0.01) keeps |N| near 1 up to the layer
+    from rfcheck.physics.rays import trace_rays
+
+    def beach(p):
+        out = np.zeros((len(p), 3))
+        out[:, 2] = B_ECR * (1.5 - p[:, 2] / 0.3)
+        return out
+
+    angles = np.radians([5.0, 20.0])
+    directions = np.stack([np.sin(angles), 0 * angles, np.cos(angles)], axis=1)
+    rays = trace_rays(F, np.zeros((2, 3)), directions, "R", beach,
+                      lambda p: np.full(len(p), 0.01 * NC), max_length=0.5,
+                      cyclotron_field=B_ECR, max_step=2e-3)
+    # the band edge |B| = B_ecr (1 + 1e-3) lies at z = 0.3 (1.5 − 1.001) = 0.1497 m
+    for ray in rays:
+        assert ray.stop == "cyclotron_layer"
+        assert ray.end[2] == pytest.approx(0.3 * (1.5 - 1.001), abs=2e-6)
