@@ -263,6 +263,27 @@ class ShortRating:
 
 
 @dataclass(frozen=True)
+class InductiveCoil:
+    """The RF coil of an inductive feed (a cylindrical coil wound round the discharge tube).
+
+    `radius` is the mean radius of the winding, `length` its axial length (m);
+    `conductor_diameter` the outer diameter of the wire or tube it is wound from (m);
+    `resistance` a measured series resistance at the drive frequency (ohm; None: estimated
+    from the conductor, skin effect only)."""
+
+    turns: float
+    radius: float  # m
+    length: float  # m
+    conductor_diameter: float  # m
+    resistance: float | None = None  # ohm
+
+    @property
+    def conductor_length(self) -> float:
+        """Length of conductor in the winding, m: N turns of 2π r (pitch and leads neglected)."""
+        return 2.0 * np.pi * self.radius * self.turns
+
+
+@dataclass(frozen=True)
 class Feed:
     """One RF feed. Ignition state: before breakdown (and whenever the plasma goes out) the
     generator looks into the empty cavity, whose reflection `cold_cavity_gamma` (|Γ|; None:
@@ -282,6 +303,7 @@ class Feed:
     cold_cavity_gamma: float | None = None
     ignition_time: float | None = None
     short_rating: ShortRating | None = None
+    coil: InductiveCoil | None = None  # inductive feeds: the coil, when declared
 
     @property
     def average_power(self) -> float:

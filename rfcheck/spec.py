@@ -331,6 +331,19 @@ class ShortRatingSpec(_Strict):
     duration: Duration
 
 
+class InductiveCoilSpec(_Strict):
+    """The RF coil of an inductive feed: a cylindrical coil round the discharge tube."""
+
+    turns: float = Field(gt=0, le=1_000_000, description="number of turns")
+    radius: PosLength = Field(description="mean radius of the winding")
+    length: PosLength = Field(description="axial length of the winding")
+    conductor_diameter: PosLength = Field(description="outer diameter of the wire or tube")
+    resistance: float | None = Field(
+        None, gt=0, le=1e6, description="measured series resistance of the coil at the drive "
+                                        "frequency, ohm; not declared: estimated from the "
+                                        "conductor (skin effect only, a lower estimate)")
+
+
 class FeedSpec(_Strict):
     id: Id
     frequency: Frequency
@@ -348,6 +361,9 @@ class FeedSpec(_Strict):
     ignition_time: Duration | None = Field(
         None, description="how long the generator may run into the unlit cavity before an "
                           "interlock stops it; not declared: continuously")
+    coil: InductiveCoilSpec | None = Field(
+        None, description='the coil of an inductive feed: { turns = 3, radius = "110 mm", '
+                          'length = "80 mm", conductor_diameter = "6.35 mm" }')
 
 
 class MaterialSpec(_Strict):
@@ -698,6 +714,14 @@ class _CrossCheck:
             if f.duty_cycle > 1:
                 self.fail(("feed", i, "duty_cycle"), "duty cycle above 100 %")
             self._line(f.line, ("feed", i, "line"))
+            if f.coil is not None:
+                if f.absorption != "inductive":
+                    self.fail(("feed", i, "coil"), "a coil is declared only for an inductive feed "
+                                                   "(absorption = \"inductive\")")
+                elif not f.coil.radius > s.chamber.radius:
+                    self.fail(("feed", i, "coil", "radius"),
+                              "the coil's radius must exceed the chamber radius (the coil is "
+                              "wound round the discharge tube)")
             self._launch(f, i)
             cc = f.cold_cavity
             if cc is not None:
@@ -905,7 +929,8 @@ class _CrossCheck:
                    f.absorption, _cold_gamma(f.cold_cavity), f.ignition_time,
                    (m.ShortRating(f.max_reflected_power_short.power,
                                   f.max_reflected_power_short.duration)
-                    if f.max_reflected_power_short else None))
+                    if f.max_reflected_power_short else None),
+                   _coil(f.coil))
             for f in s.feed)
         windows = tuple(
             m.Window(w.id, w.feed, w.z,
@@ -929,6 +954,16 @@ class _CrossCheck:
 
 def _pressure_span(p) -> m.Span:
     return m.Span(p, p) if isinstance(p, float) else m.Span(p.min, p.max)
+
+
+def _coil(c: InductiveCoilSpec | None):
+    """The model's InductiveCoil of a declared coil (None if not declared)."""
+    from rfcheck import model as m
+
+    if c is None:
+        return None
+    return m.InductiveCoil(float(c.turns), c.radius, c.length, c.conductor_diameter,
+                           None if c.resistance is None else float(c.resistance))
 
 
 def _cold_gamma(cc: ColdCavitySpec | None) -> float | None:

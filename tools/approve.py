@@ -25,6 +25,7 @@ CASES = (
     ("bench-ecr-reactor.toml", None),
     ("min-b-ion-source.toml", None),
     ("min-b-ion-source.toml", "min-b-site-policy.toml"),
+    ("icp-etch-source.toml", None),
 )
 
 

@@ -412,6 +412,10 @@ def _squash(name: str) -> str:
 
 _CIRCULAR = re.compile(r"^\s*circular\s*[:\s]\s*([0-9]*\.?[0-9]+(?:[eE][+-]?[0-9]+)?)\s*mm\s*$",
                        re.IGNORECASE)
+_NUMBER = r"([0-9]*\.?[0-9]+(?:[eE][+-]?[0-9]+)?)"
+#: ``coax:<d>/<D> mm`` or ``coax:<d>/<D> mm eps_r <ε_r>`` (d inner conductor, D outer bore)
+_COAX = re.compile(r"^\s*coax(?:ial)?\s*[:\s]\s*" + _NUMBER + r"\s*/\s*" + _NUMBER
+                   + r"\s*mm(?:\s*,?\s*eps_?r\s*=?\s*" + _NUMBER + r")?\s*$", re.IGNORECASE)
 
 
 def line_from_name(name: str) -> Line:
@@ -419,8 +423,10 @@ def line_from_name(name: str) -> Line:
 
     Accepts EIA names with or without the hyphen (``"WR-340"``, ``"WR340"``, ``"wr 340"``),
     IEC designations (``"R26"``), the coaxial catalogue names (``"EIA-1-5/8"``),
-    ``"free-space"`` / ``"free space"``, and ``"circular:<diameter> mm"`` (inner diameter;
-    only a plain number followed by ``mm`` is parsed here).
+    ``"free-space"`` / ``"free space"``, ``"circular:<diameter> mm"`` (inner diameter;
+    only a plain number followed by ``mm`` is parsed here) and a declared coaxial line
+    ``"coax:<d>/<D> mm"`` (inner conductor diameter d, outer conductor bore D, air) or
+    ``"coax:<d>/<D> mm, eps_r <ε_r>"`` (a uniform dielectric filling).
 
     Raises
     ------
@@ -432,6 +438,9 @@ def line_from_name(name: str) -> Line:
     m = _CIRCULAR.match(name)
     if m:
         return circular_guide(float(m.group(1)) * 1e-3, name=f"circular {m.group(1)} mm")
+    m = _COAX.match(name)
+    if m:
+        return _coax_from_match(m)
     key = _squash(name)
     if key == "FREESPACE":
         return free_space()
@@ -441,7 +450,31 @@ def line_from_name(name: str) -> Line:
             return line
     choices = ", ".join(line_names())
     raise ValueError(f"unknown line {name!r}; valid names: {choices}; IEC designations "
-                     f"(e.g. R26); or 'circular:<diameter> mm'")
+                     f"(e.g. R26); 'circular:<diameter> mm'; or 'coax:<d>/<D> mm' "
+                     f"(optionally ', eps_r <ε_r>')")
+
+
+#: bounds of a declared coaxial line: ε_r of real fillings (air 1 ... ceramics ~10, with room),
+#: diameters as the spec's lengths (1 µm ... 100 m; rfcheck/limits.py RANGES["length"])
+COAX_EPS_R_RANGE = (1.0, 100.0)
+COAX_DIAMETER_RANGE = (1e-6, 100.0)
+
+
+def _coax_from_match(m: re.Match) -> Line:
+    d_text, big_text, eps_text = m.group(1), m.group(2), m.group(3)
+    d, big_d = float(d_text) * 1e-3, float(big_text) * 1e-3
+    eps = float(eps_text) if eps_text is not None else 1.0
+    lo, hi = COAX_DIAMETER_RANGE
+    if not (lo <= d <= hi and lo <= big_d <= hi):
+        raise ValueError(f"coaxial diameters must lie between {lo * 1e3:g} mm and {hi * 1e3:g} mm")
+    if not d < big_d:
+        raise ValueError("coaxial line needs the inner conductor diameter d below the outer "
+                         "conductor's inner diameter D ('coax:<d>/<D> mm')")
+    if not COAX_EPS_R_RANGE[0] <= eps <= COAX_EPS_R_RANGE[1]:
+        raise ValueError(f"coaxial filling eps_r must lie between {COAX_EPS_R_RANGE[0]:g} and "
+                         f"{COAX_EPS_R_RANGE[1]:g}")
+    label = f"coax {d_text}/{big_text} mm" + (f", eps_r {eps_text}" if eps_text is not None else "")
+    return coaxial_line(d, big_d, eps, name=label, source="declared in the spec")
 
 
 guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

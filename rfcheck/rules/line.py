@@ -11,7 +11,9 @@ from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.physics.rfpower import (breakdown_field, max_forward_power, max_net_power,
                                      te10_max_power, te10_peak_field, te11_max_power,
                                      te11_peak_field, vswr)
-from rfcheck.physics.waveguide import line_from_name
+from rfcheck.physics.coaxial import (COPPER_CONDUCTIVITY, coaxial_max_power, coaxial_peak_field,
+                                     coaxial_wall_heating)
+from rfcheck.physics.waveguide import coaxial_characteristic_impedance, line_from_name
 
 from .context import Context
 from .load import IGNITION, RUNNING, cold_gamma, running_gamma
@@ -74,7 +76,8 @@ def waveguide_band(ctx: Context) -> Iterator[Finding]:
         f_hi = feed.frequency + feed.frequency_tolerance
         band_lo, band_hi = line.recommended_band
         # the binding edge: the one the band comes closest to (relative distance)
-        low_gap = (f_lo - band_lo) / feed.frequency
+        # a TEM line has no lower edge (its band starts at 0 Hz): only the upper one can bind
+        low_gap = (f_lo - band_lo) / feed.frequency if line.cutoff > 0 else math.inf
         high_gap = (band_hi - f_hi) / feed.frequency if math.isfinite(band_hi) else math.inf
         if low_gap <= high_gap:
             measured, limit, margin = f_lo, band_lo, f_lo - band_lo
@@ -121,12 +124,13 @@ def _watts(x: float) -> str:
                       "below 1 the allowed peak field would exceed the breakdown field itself; "
                       "practical ratings stay within 2 to 4 in field (1/4 to 1/16 in power), and "
                       "10 (1/100 in power) is beyond any", "1"))},
-      applies="feeds on rectangular (TE10) and circular (TE11) guide; not coaxial or free-space "
-              "feeds")
+      applies="feeds on rectangular (TE10) and circular (TE11) guide and on coaxial line (TEM); "
+              "not free-space feeds")
 def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
     """What it checks
     The largest electric field in the feed's guide — at the centre of the broad wall of a
-    rectangular guide (TE10), on the axis of a circular guide (TE11) — at a standing-wave
+    rectangular guide (TE10), on the axis of a circular guide (TE11), on the surface of the
+    inner conductor of a coaxial line (TEM) — at a standing-wave
     maximum: E_pk = (1 + |Γ|) E0 at the feed's peak forward power,
     at the frequency of f ± tolerance where E0 is largest, in both states of the load:
     running, with |Γ| the bound of load.reflected-power (the windows' worst reflection plus
@@ -144,8 +148,13 @@ def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
     multipactor and surface flashover, which this rule does not assess. It supports review
     and defers to the line supplier's ratings, local codes and qualified practice.
 
-    Not applicable to free-space feeds (no guide), and to coaxial lines, for which rfcheck
-    has no peak-field formula yet.
+    A coaxial line's message adds its characteristic impedance and the heat its copper
+    conductors take per metre at the feed's average power (at a current maximum of the
+    standing wave), the figure the supplier's thermal rating must carry. A line filled with a
+    solid dielectric is held to the same air limit: the gaps beside the inner-conductor
+    supports are air, and the filling's own strength is the supplier's figure.
+
+    Not applicable to free-space feeds (no guide).
 
     Why it matters
     An arc in the air-filled guide runs back towards the generator, burns flanges and
@@ -155,6 +164,8 @@ def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
     Equation
     E0 = √(4 Z_TE10 P / (a b)), Z_TE10 = η0 / √(1 − (f_c/f)²); TE11 on the axis of a guide of
     radius a: E0² = Z_TE p'² P / (π a² (p'² − 1) J1(p')²) ≈ 1.333 Z_TE P / a²;
+    coaxial TEM (inner radius a, outer b): E0 = √(2 Z0 P) / (a ln(b/a)),
+    Z0 = η0 ln(b/a) / (2π √ε_r), P_max = π √ε_r a² E_bd² ln(b/a) / η0;
     E_pk = (1 + |Γ|) E0;
     limit E_bd / s with E_bd = 3 MV/m;  P_max = a b E_bd² √(1 − (f_c/f)²) / (4 η0);
     largest net power P_max / VSWR; largest peak forward power P_max / (s² (1 + |Γ|)²).
@@ -165,7 +176,8 @@ def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
 
     References
     D. M. Pozar, Microwave Engineering, 4th ed. (2012), §2.3 (standing waves), §3.3 (TE10
-    power flow and power capacity), §3.4 (TE11 fields and power flow); A. D. MacDonald, Microwave Breakdown in Gases (Wiley
+    power flow and power capacity), §3.4 (TE11 fields and power flow), §2.2 and §2.7 (coaxial
+    fields and conductor loss); A. D. MacDonald, Microwave Breakdown in Gases (Wiley
     1966). Air at 1 atm: 3 MV/m (30 kV/cm), common practice.
     """
     e_bd = float(breakdown_field())
@@ -174,7 +186,7 @@ def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
                    f"{limit / 1e6:.3g} MV/m (theoretical upper bound)")
     for feed in ctx.model.feeds:
         line = line_from_name(feed.line)
-        if line.kind not in ("rectangular", "circular"):
+        if line.kind not in ("rectangular", "circular", "coaxial"):
             why = ("quasi-optical (free-space) feed: no guide to break down" if line.kind == "free-space"
                    else f"{line.kind} line ({line.dominant_mode}): no peak-field formula in rfcheck "
                         "yet; check against the supplier's power rating")
@@ -201,7 +213,19 @@ def _breakdown_state(ctx, feed, line, state, gamma, source, requirement, limit, 
                      safety_factor) -> Finding:
     subject = f"feed {feed.id}, {state}"
     f = ctx.envelope.frequencies(feed)
-    if line.kind == "circular":
+    extra = ""
+    if line.kind == "coaxial":
+        d_in, d_out, eps = line.dimension("inner_diameter"), line.dimension("outer_diameter"), line.eps_r
+        e_pk = coaxial_peak_field(feed.power, d_in, d_out, gamma, eps) * np.ones_like(f)
+        capacity = lambda fw: float(coaxial_max_power(d_in, d_out, e_bd, eps))  # noqa: E731
+        z0 = float(coaxial_characteristic_impedance(d_in, d_out, eps))
+        heat = float(np.max(coaxial_wall_heating(feed.average_power, f, d_in, d_out, eps,
+                                                 gamma_mag=min(gamma, 1.0))))
+        extra = (f"; Z0 {z0:.4g} Ω; conductor heat {_watts(heat)}/m at "
+                 f"{_watts(feed.average_power)} average power (copper, σ = "
+                 f"{COPPER_CONDUCTIVITY:.3g} S/m, at a current maximum): the line's thermal "
+                 "rating must carry it")
+    elif line.kind == "circular":
         d_dim = line.dimension("diameter")
         e_pk = te11_peak_field(feed.power, d_dim, f, gamma)
         capacity = lambda fw: float(te11_max_power(d_dim, fw, e_bd))  # noqa: E731
@@ -231,8 +255,8 @@ def _breakdown_state(ctx, feed, line, state, gamma, source, requirement, limit, 
            f"{safety_factor:.3g}); theoretical P_max of matched {line.name} {_watts(p_max)}, "
            + (f"P_max/VSWR {_watts(p_net)} at VSWR {float(vswr(gamma)):.3g}" if gamma < 1
               else "no net power at full reflection")
-           + f"; the limit allows {_watts(p_fwd)} peak forward. An upper bound: flange gaps, "
-             "humidity and dust lower it")
+           + f"; the limit allows {_watts(p_fwd)} peak forward" + extra
+           + ". An upper bound: flange gaps, humidity and dust lower it")
     return ctx.finding(subject, requirement, passed=margin >= 0, message=msg,
                        measured=Quantity(worst_e, "V/m"), limit=Quantity(limit, "V/m"),
                        margin=Quantity(margin, "V/m"), worst_case=where, details=details)

@@ -142,7 +142,7 @@ def test_breakdown_worst_point_is_the_lowest_frequency(base_model, policy):
         assert fd.worst_case["frequency"].value == pytest.approx(2.40e9)
 
 
-@pytest.mark.parametrize("line", ["free-space", "EIA-1-5/8"])
+@pytest.mark.parametrize("line", ["free-space"])  # coaxial lines: tests/rules/test_line_coax.py
 def test_breakdown_not_applicable_without_te10_formula(base_model, policy, line):
     (fd,) = evaluate(base_model, "line.breakdown", policy, make_feed(line, 2.45e9))
     assert fd.status is Status.NOT_APPLICABLE
