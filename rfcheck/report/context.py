@@ -100,6 +100,27 @@ def _finding_row(f: Finding) -> dict:
     }
 
 
+def _person(text: str) -> tuple[str, str]:
+    """('A. Invented', 'RF engineer') from 'A. Invented (RF engineer)'; an empty role when
+    the text ends in no parenthesis (a blank line to fill in)."""
+    text = (text or "").strip()
+    if text.endswith(")") and " (" in text:
+        name, _, role = text[:-1].rpartition(" (")
+        if name:
+            return name.strip(), role.strip()
+    return text, ""
+
+
+def _signers(review) -> list[dict]:
+    """The three sign-off steps with the names the specification gives (blank lines else)."""
+    out = []
+    for step, key in (("Prepared by", "prepared_by"), ("Checked by", "checked_by"),
+                      ("Approved by", "approved_by")):
+        name, role = _person(getattr(review, key, "") if review is not None else "")
+        out.append({"step": step, "name": name, "role": role})
+    return out
+
+
 def _verdict_class(run) -> str:
     """CSS class of the cover's verdict box: green only for a plain PASS."""
     word = verdict_word(run)
@@ -201,6 +222,7 @@ def build(run, figures: list[dict] | None = None) -> dict:
         "figures": figures or [],
         "cautions": cautions,
         "cautions_omitted": cautions_omitted,
+        "signers": _signers(m.review if m else None),
         "review": {"prepared_by": m.review.prepared_by if m else "",
                    "checked_by": m.review.checked_by if m else "",
                    "approved_by": m.review.approved_by if m else "",
