@@ -76,6 +76,9 @@ def _emit(result, json_out: str | None, pdf_out: str | None, quiet_table: bool) 
         items.append(("--pdf", Path(pdf_out), render_pdf(result)))
     if items:
         commit(items)
+        for opt, path, data in items:  # what was written, on stderr (stdout keeps the results)
+            what = "JSON results" if opt == "--json" else "PDF report"
+            click.echo(f"wrote {what} {for_terminal(str(path))} ({_size_text(len(data))})", err=True)
     if json_out == "-":
         sys.stdout.write(payload.decode())
         sys.stdout.flush()
@@ -83,6 +86,16 @@ def _emit(result, json_out: str | None, pdf_out: str | None, quiet_table: bool) 
         click.echo(text_table(result, colour=sys.stdout.isatty()))
     elif json_out == "-":
         click.echo(f"verdict: {for_terminal(str(result.verdict))}", err=True)
+
+
+def _size_text(n: int) -> str:
+    """'412 345 bytes, 403 KiB': the exact count, and a rounded one from 1 KiB up."""
+    exact = f"{n:,} bytes".replace(",", " ")
+    if n < 1024:
+        return exact
+    if n < 1024 ** 2:
+        return f"{exact}, {n / 1024:.0f} KiB"
+    return f"{exact}, {n / 1024 ** 2:.1f} MiB"
 
 
 def _exit_for(result, strict: bool) -> Exit:

@@ -7,6 +7,8 @@ from pathlib import PurePath
 from rfcheck import __version__
 from rfcheck.run import RULESET_VERSION, InputRecord
 from rfcheck.findings import Finding, Status
+from rfcheck.views import (STATUS_MEANINGS, STATUS_ORDER, STATUS_WORDS, VERDICT_SENTENCES,
+                           counts_text, verdict_word, waived_findings)
 
 FAMILY_TITLES = {
     "spec": "Specification sanity",
@@ -20,19 +22,6 @@ FAMILY_TITLES = {
     "absorption": "Absorption",
     "exposure": "Exposure",
 }
-STATUS_TEXT = {
-    Status.PASS: "pass", Status.WARN: "warning", Status.FAIL: "FAIL", Status.ERROR: "not evaluated",
-    Status.WAIVED: "waived", Status.NOT_APPLICABLE: "n/a",
-}
-VERDICT_TEXT = {
-    "pass": "All selected requirements are met over the declared envelope.",
-    "warn": "Requirements are met, with warnings that need a reviewer's attention.",
-    "fail": "One or more requirements are not met (or could not be evaluated) over the declared envelope.",
-    "not-evaluated": "The design was not reviewed: no requirement was evaluated over the declared "
-                     "envelope (see the reasons below). This is not a pass.",
-}
-
-
 #: name of the results attachment
 RESULTS_ATTACHMENT = "rfcheck-results.json"
 #: attachment name of each kind of input file: a prefix before the file's base name
@@ -100,7 +89,7 @@ def _finding_row(f: Finding) -> dict:
         "rule": f.rule,
         "subject": f.subject,
         "status": f.status.value,
-        "status_text": STATUS_TEXT[f.status],
+        "status_text": STATUS_WORDS[f.status],
         "requirement": f.requirement,
         "found": f.measured.text() if f.measured else "—",
         "limit": f.limit.text() if f.limit else "—",
@@ -109,6 +98,42 @@ def _finding_row(f: Finding) -> dict:
         "message": f.message,
         "waiver": f.waiver,
     }
+
+
+def _person(text: str) -> tuple[str, str]:
+    """('A. Invented', 'RF engineer') from 'A. Invented (RF engineer)'; an empty role when
+    the text ends in no parenthesis (a blank line to fill in)."""
+    text = (text or "").strip()
+    if text.endswith(")") and " (" in text:
+        name, _, role = text[:-1].rpartition(" (")
+        if name:
+            return name.strip(), role.strip()
+    return text, ""
+
+
+def _signers(review) -> list[dict]:
+    """The three sign-off steps with the names the specification gives (blank lines else)."""
+    out = []
+    for step, key in (("Prepared by", "prepared_by"), ("Checked by", "checked_by"),
+                      ("Approved by", "approved_by")):
+        name, role = _person(getattr(review, key, "") if review is not None else "")
+        out.append({"step": step, "name": name, "role": role})
+    return out
+
+
+def _verdict_class(run) -> str:
+    """CSS class of the cover's verdict box: green only for a plain PASS."""
+    word = verdict_word(run)
+    if word.startswith("PASS"):
+        return "pass" if word == "PASS" else "warn"
+    return run.verdict
+
+
+def _waiver_row(f: Finding) -> dict:
+    w = f.waiver or {}
+    return {"rule": f.rule, "subject": f.subject, "reason": w.get("reason", ""),
+            "reference": w.get("reference", ""), "expires": w.get("expires") or "no expiry",
+            "approved_by": w.get("approved_by") or ""}
 
 
 def _characteristic_rows(chars: dict) -> list[dict]:
@@ -177,8 +202,13 @@ def build(run, figures: list[dict] | None = None) -> dict:
         "source": {"name": run.spec_name, "revision": run.spec_revision,
                    "lab": m.source.lab if m else "", "description": m.source.description if m else ""},
         "verdict": run.verdict,
-        "verdict_text": VERDICT_TEXT[run.verdict],
-        "verdict_label": run.verdict_label,
+        "verdict_text": VERDICT_SENTENCES[verdict_word(run)],
+        "verdict_label": verdict_word(run),
+        "verdict_class": _verdict_class(run),
+        "waivers": [_waiver_row(f) for f in waived_findings(run)],
+        "counts_text": counts_text(run),
+        "statuses": [{"value": s.value, "word": STATUS_WORDS[s], "meaning": STATUS_MEANINGS[s]}
+                     for s in STATUS_ORDER],
         "verdict_reasons": list(run.verdict_reasons),
         "unused_waivers": [dict(u) for u in run.unused_waivers],
         "counts": run.counts(),
@@ -192,6 +222,7 @@ def build(run, figures: list[dict] | None = None) -> dict:
         "figures": figures or [],
         "cautions": cautions,
         "cautions_omitted": cautions_omitted,
+        "signers": _signers(m.review if m else None),
         "review": {"prepared_by": m.review.prepared_by if m else "",
                    "checked_by": m.review.checked_by if m else "",
                    "approved_by": m.review.approved_by if m else "",

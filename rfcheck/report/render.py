@@ -26,36 +26,72 @@ def _font_dir() -> Path:
     return Path(matplotlib.get_data_path()) / "fonts" / "ttf"
 
 
+def _autoescape(name: str | None) -> bool:
+    """Escape everything the templates print, except the packaged stylesheet they include."""
+    return not (name or "").endswith(".css")
+
+
 def render_html(run) -> str:
+    """The report as one HTML page. Every value from the run is escaped (autoescape); a name
+    the template uses but the context lacks is an error, never an empty string
+    (StrictUndefined). Only the figures' SVG, made by matplotlib, is inserted as markup."""
     import jinja2
 
     env = jinja2.Environment(
-        loader=jinja2.FileSystemLoader(str(templates_dir())),
-        autoescape=jinja2.select_autoescape(["html", "j2"]),
+        loader=jinja2.FileSystemLoader(str(templates_dir())), autoescape=_autoescape,
         undefined=jinja2.StrictUndefined, trim_blocks=True, lstrip_blocks=True)
     data = report_context.build(run, all_figures(run))
     data["font_dir"] = _font_dir().as_uri()
     return env.get_template("report.html.j2").render(**data)
 
 
-def _fetcher():
-    from weasyprint.urls import URLFetcher
+#: what the PDF renderer may read: the templates and the four fonts the stylesheet names
+_FONTS = ("DejaVuSans.ttf", "DejaVuSans-Bold.ttf", "DejaVuSans-Oblique.ttf", "DejaVuSansMono.ttf")
+_TYPES = {".ttf": "font/ttf", ".css": "text/css", ".svg": "image/svg+xml", ".png": "image/png"}
 
-    allowed = [templates_dir().resolve(), _font_dir().resolve()]
+
+def _allowed_files() -> set[Path]:
+    out = {(_font_dir() / f).resolve() for f in _FONTS}
+    out |= {p.resolve() for p in templates_dir().iterdir() if p.suffix in _TYPES}
+    return out
+
+
+def _fetcher():
+    """A URL fetcher for weasyprint that serves only packaged resources.
+
+    Served: the packaged templates folder's stylesheets and images and the four packaged fonts
+    (read here, by exact resolved path, never through urllib), and ``data:`` URIs. Refused,
+    and recorded in ``refused``: every other ``file:`` path (``/etc/passwd``, a path that
+    leaves the package through ``..`` or a link), and every other scheme (http, https, ftp,
+    …): no request ever leaves the process. weasyprint reports a refused resource as a
+    warning and leaves it out; the text around it renders as text.
+    """
+    from urllib.parse import unquote, urlsplit
+
+    from weasyprint.urls import URLFetcher, URLFetcherResponse
+
+    allowed = _allowed_files()
 
     class PackagedOnly(URLFetcher):
-        """Fetch only packaged templates and fonts: no network, no arbitrary files."""
+        def __init__(self):
+            super().__init__(allowed_protocols=("data",))
+            self.served: list[str] = []
+            self.refused: list[str] = []
 
         def fetch(self, url, headers=None):
-            if url.startswith("file://"):
-                from urllib.parse import unquote, urlparse
-
-                p = Path(unquote(urlparse(url).path)).resolve()
-                if any(p.is_relative_to(a) for a in allowed):
-                    return super().fetch(url, headers)
-            if url.startswith("data:"):
+            scheme = url.split(":", 1)[0].lower() if ":" in url else ""
+            if scheme == "data":
+                self.served.append(url[:40])
                 return super().fetch(url, headers)
-            raise ValueError(f"report refuses to fetch {url}")
+            if scheme == "file":
+                parts = urlsplit(url)
+                path = Path(unquote(parts.path)).resolve() if parts.netloc in ("", "localhost") else None
+                if path is not None and path in allowed and path.is_file():
+                    self.served.append(url)
+                    return URLFetcherResponse(url, body=path.read_bytes(),
+                                              headers={"Content-Type": _TYPES[path.suffix]})
+            self.refused.append(url)
+            raise ValueError(f"the report refuses to fetch {url[:200]}: only packaged resources")
 
     return PackagedOnly()
 
