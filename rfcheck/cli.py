@@ -85,7 +85,9 @@ def _emit(result, json_out: str | None, pdf_out: str | None, quiet_table: bool) 
     if not (json_out == "-" or quiet_table):
         click.echo(text_table(result, colour=sys.stdout.isatty()))
     elif json_out == "-":
-        click.echo(f"verdict: {for_terminal(str(result.verdict))}", err=True)
+        from rfcheck.views import verdict_word
+
+        click.echo(f"verdict: {verdict_word(result)}", err=True)
 
 
 def _size_text(n: int) -> str:
