@@ -31,7 +31,7 @@ class Timing:
 
     @property
     def spread(self) -> float:
-        """Interquartile range over the median (0 for fewer than 4 samples' worth)."""
+        """Interquartile range over the median (0 for a single sample)."""
         if len(self.times) < 2:
             return 0.0
         q = statistics.quantiles(self.times, n=4, method="inclusive")
@@ -58,9 +58,11 @@ def alternate(reference: Callable[[], object], candidate: Callable[[], object], 
 
 
 def run_process(cmd: list[str], ok_codes=(0, 1)) -> float:
-    """Wall time of a subprocess, s; raises SystemExit with its stderr if it fails."""
+    """Wall time of a subprocess, s; raises SystemExit with its stderr if it fails.
+
+    Its output is read through a pipe (as in a shell pipeline), never sent to a device."""
     t0 = time.perf_counter()
-    proc = subprocess.run(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
+    proc = subprocess.run(cmd, capture_output=True, text=True)
     dt = time.perf_counter() - t0
     if proc.returncode not in ok_codes:
         raise SystemExit(f"{' '.join(cmd)} exited {proc.returncode}: {proc.stderr[-800:]}")
