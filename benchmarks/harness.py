@@ -10,6 +10,7 @@ median. Results are rows of a table (:class:`Row`) that ``run_all.py`` prints to
 
 from __future__ import annotations
 
+import resource
 import statistics
 import subprocess
 import sys
@@ -31,7 +32,7 @@ class Timing:
 
     @property
     def spread(self) -> float:
-        """Interquartile range over the median (0 for fewer than 4 samples' worth)."""
+        """Interquartile range over the median (0 for a single sample)."""
         if len(self.times) < 2:
             return 0.0
         q = statistics.quantiles(self.times, n=4, method="inclusive")
@@ -57,11 +58,21 @@ def alternate(reference: Callable[[], object], candidate: Callable[[], object], 
     return ref, cand
 
 
-def run_process(cmd: list[str], ok_codes=(0, 1)) -> float:
-    """Wall time of a subprocess, s; raises SystemExit with its stderr if it fails."""
+def run_process(cmd: list[str], ok_codes=(0, 1), cpu: Timing | None = None) -> float:
+    """Wall time of a subprocess, s; raises SystemExit with its stderr if it fails.
+
+    Its output is read through a pipe (as in a shell pipeline), never sent to a device.
+    With `cpu`, the child's user + system CPU time is appended to it as well: on a shared
+    machine the wall time of both sides swells with the load, the CPU time much less, so
+    the two ratios side by side show whether a change in the wall ratio is real. (CPU time
+    counts every thread of the child, so it may exceed the wall time.)"""
+    r0 = resource.getrusage(resource.RUSAGE_CHILDREN)
     t0 = time.perf_counter()
-    proc = subprocess.run(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
+    proc = subprocess.run(cmd, capture_output=True, text=True)
     dt = time.perf_counter() - t0
+    r1 = resource.getrusage(resource.RUSAGE_CHILDREN)
+    if cpu is not None:
+        cpu.times.append(r1.ru_utime + r1.ru_stime - r0.ru_utime - r0.ru_stime)
     if proc.returncode not in ok_codes:
         raise SystemExit(f"{' '.join(cmd)} exited {proc.returncode}: {proc.stderr[-800:]}")
     return dt

@@ -86,7 +86,7 @@ def _signed_log(s, radius):
     return np.where(s >= 0, 1.0, -1.0) * np.log(np.abs(s) + radius)
 
 
-def facet_field(points, faces, z1, z2, block: int = 256):
+def facet_field(points, faces, z1, z2, block: int = 128):
     """B (n, 3) of uniformly charged rectangles {A + u t, z1 <= z <= z2}.
 
     B = sigma / (4 pi) * integral of (P - Q) / |P - Q|^3 dA over each face, in closed form

@@ -213,28 +213,50 @@ def _zoom(model, scales, start, step, lower, upper, periodic, levels, maximise=F
     coordinate within +/- step around the best point, then halves the step. `field`
     (points (S, K, 3) -> B (S, K, 3)) replaces the model's total field at each scale.
     """
+    return _zoom_together(model, scales, [(start, step)], lower, upper, periodic, levels,
+                          maximise, field)[0]
+
+
+def _zoom_together(model, scales, searches, lower, upper, periodic, levels, maximise=False,
+                   field=None):
+    """:func:`_zoom` of several independent searches [(start, step), ...] in lockstep: the
+    candidates of all searches at one level go to the field model in one call (fewer,
+    larger evaluations; each search picks from its own candidates, as alone)."""
     if field is None:
         field = lambda p: model.field_per_scale(p, scales)  # noqa: E731
-    free = np.nonzero(step > 0)[0]
-    axes = np.meshgrid(*([np.linspace(-1.0, 1.0, ZOOM_POINTS)] * len(free)), indexing="ij")
-    unit = np.zeros((axes[0].size if len(free) else 1, 3))
-    for k, i in enumerate(free):
-        unit[:, i] = axes[k].ravel()
-    x = np.array(start, dtype=float)
-    step = np.array(step, dtype=float)
-    rows = np.arange(len(x))
-    for _ in range(levels if len(free) else 1):
-        cand = x[:, None, :] + unit[None] * step
-        bounded = ~periodic
-        cand[..., bounded] = np.clip(cand[..., bounded], lower[bounded], upper[bounded])
-        b = np.linalg.norm(field(_cartesian(cand[..., 0], cand[..., 1], cand[..., 2])),
-                           axis=-1)
-        b = _defined(b, "chamber")
-        best = _pick(b, maximise)
-        x = cand[rows, best]
-        value = b[rows, best]
-        step = step / 2.0
-    return x, value
+    units, xs, steps, counts = [], [], [], []
+    for start, step in searches:
+        free = np.nonzero(step > 0)[0]
+        axes = np.meshgrid(*([np.linspace(-1.0, 1.0, ZOOM_POINTS)] * len(free)), indexing="ij")
+        unit = np.zeros((axes[0].size if len(free) else 1, 3))
+        for k, i in enumerate(free):
+            unit[:, i] = axes[k].ravel()
+        units.append(unit)
+        xs.append(np.array(start, dtype=float))
+        steps.append(np.array(step, dtype=float))
+        counts.append(levels if len(free) else 1)
+    values = [None] * len(searches)
+    bounded = ~periodic
+    for level in range(max(counts)):
+        active = [i for i in range(len(searches)) if level < counts[i]]
+        cands = []
+        for i in active:
+            cand = xs[i][:, None, :] + units[i][None] * steps[i]
+            cand[..., bounded] = np.clip(cand[..., bounded], lower[bounded], upper[bounded])
+            cands.append(cand)
+        joined = np.concatenate(cands, axis=1)
+        b_all = np.linalg.norm(field(_cartesian(joined[..., 0], joined[..., 1],
+                                                joined[..., 2])), axis=-1)
+        b_all = _defined(b_all, "chamber")
+        edges = np.cumsum([0] + [c.shape[1] for c in cands])
+        for i, cand, lo, hi in zip(active, cands, edges[:-1], edges[1:]):
+            b = b_all[:, lo:hi]
+            rows = np.arange(len(cand))
+            best = _pick(b, maximise)
+            xs[i] = cand[rows, best]
+            values[i] = b[rows, best]
+            steps[i] = steps[i] / 2.0
+    return [(x, v) for x, v in zip(xs, values)]
 
 
 def _pick(b, maximise: bool, rtol: float = 1e-9):
@@ -529,10 +551,7 @@ def trap_geometries(model, chamber: Chamber, scales,
     z = np.linspace(chamber.z_start, chamber.z_end, grid.volume_z)
     start, _ = _grid_best(model, s, r, phi, z)
     step = np.array([_spacing(r), _spacing(phi), _spacing(z)])
-    vmin, vmin_b = _zoom(model, s, start, step, lower, upper, periodic, levels)
-
-    # B_rad (multipole alone) and the total |B|: max over azimuth on the wall at z of B_min
-    radial, total = radial_wall_fields(model, chamber, vmin[:, 2], grid, s)
+    searches = [(start, step)]
 
     # last closed surface: smallest |B| on the wall and on both end planes
     phi_w = _azimuths(model, grid.azimuths)
@@ -543,10 +562,16 @@ def trap_geometries(model, chamber: Chamber, scales,
                np.array([_spacing(r_e), _spacing(phi_w), 0.0])),
               ("extraction end", r_e, [chamber.z_end],
                np.array([_spacing(r_e), _spacing(phi_w), 0.0]))]
-    closed = []
     for where, rr, zz, step in pieces:
         start, _ = _grid_best(model, s, np.asarray(rr), phi_w, np.asarray(zz))
-        closed.append((where,) + _zoom(model, s, start, step, lower, upper, periodic, levels))
+        searches.append((start, step))
+    # the volume minimum and the three surface minima are independent: zoom them together
+    found = _zoom_together(model, s, searches, lower, upper, periodic, levels)
+    vmin, vmin_b = found[0]
+    closed = [(where,) + f for (where, *_), f in zip(pieces, found[1:])]
+
+    # B_rad (multipole alone) and the total |B|: max over azimuth on the wall at z of B_min
+    radial, total = radial_wall_fields(model, chamber, vmin[:, 2], grid, s)
 
     results = []
     for i, profile in enumerate(axis_profiles(model, chamber, s, grid)):
