@@ -55,16 +55,23 @@ def _evaluate(spec: Path, policy_path: Path | None):
     return run(loaded, policy)
 
 
-def _targets(json_out: str | None, pdf_out: str | None) -> list:
+def _targets(json_out: str | None, pdf_out: str | None, html_out: str | None = None) -> list:
     out = []
     if json_out is not None and json_out != "-":
         out.append(("--json", Path(json_out)))
     if pdf_out is not None:
         out.append(("--pdf", Path(pdf_out)))
+    if html_out is not None:
+        out.append(("--html", Path(html_out)))
     return out
 
 
-def _emit(result, json_out: str | None, pdf_out: str | None, quiet_table: bool) -> None:
+#: what each output option writes, in the stderr line
+_WHAT = {"--json": "JSON results", "--pdf": "PDF report", "--html": "HTML report"}
+
+
+def _emit(result, json_out: str | None, pdf_out: str | None, quiet_table: bool,
+          html_out: str | None = None) -> None:
     from rfcheck.outputs import commit
     from rfcheck.text import for_terminal
     from rfcheck.views import text_table
@@ -79,11 +86,15 @@ def _emit(result, json_out: str | None, pdf_out: str | None, quiet_table: bool) 
         from rfcheck.report.render import render_pdf
 
         items.append(("--pdf", Path(pdf_out), render_pdf(result)))
+    if html_out is not None:
+        from rfcheck.report.render import render_screen_html  # never imports weasyprint
+
+        items.append(("--html", Path(html_out), render_screen_html(result)))
     if items:
         commit(items)
         for opt, path, data in items:  # what was written, on stderr (stdout keeps the results)
-            what = "JSON results" if opt == "--json" else "PDF report"
-            click.echo(f"wrote {what} {for_terminal(str(path))} ({_size_text(len(data))})", err=True)
+            click.echo(f"wrote {_WHAT[opt]} {for_terminal(str(path))} ({_size_text(len(data))})",
+                       err=True)
     if json_out == "-":
         sys.stdout.write(payload.decode())
         sys.stdout.flush()
@@ -118,15 +129,17 @@ def _exit_for(result, strict: bool) -> Exit:
               help="Site policy file (thresholds, rule selection, waivers).")
 @click.option("--json", "json_out", metavar="PATH|-", help="Write the results as JSON ('-' for stdout).")
 @click.option("--pdf", "pdf_out", metavar="PATH", type=str, help="Write the PDF review report.")
+@click.option("--html", "html_out", metavar="PATH", type=str,
+              help="Write the same report as one self-contained HTML page for on-screen review.")
 @click.option("--strict", is_flag=True, help="Exit 1 on warnings too.")
 def check(spec: Path, policy_path: Path | None, json_out: str | None, pdf_out: str | None,
-          strict: bool) -> None:
+          html_out: str | None, strict: bool) -> None:
     """Check a source specification SPEC against the rule catalogue."""
     from rfcheck.outputs import plan
 
-    plan(_targets(json_out, pdf_out))
+    plan(_targets(json_out, pdf_out, html_out))
     result = _evaluate(spec, policy_path)
-    _emit(result, json_out, pdf_out, quiet_table=False)
+    _emit(result, json_out, pdf_out, quiet_table=False, html_out=html_out)
     raise SystemExit(_exit_for(result, strict))
 
 

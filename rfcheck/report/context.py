@@ -194,6 +194,7 @@ def build(run, figures: list[dict] | None = None) -> dict:
     attention = [_finding_row(f) for f in run.findings
                  if f.status in (Status.FAIL, Status.ERROR, Status.WARN, Status.WAIVED)]
     m = run.model
+    from .budget import budget_rows
     from .cautions import select_cautions
 
     cautions, cautions_omitted = select_cautions(m, run.findings)
@@ -220,6 +221,7 @@ def build(run, figures: list[dict] | None = None) -> dict:
         "attention": attention,
         "characteristics": _characteristic_rows(run.characteristics),
         "figures": figures or [],
+        "power_budget": budget_rows(run),
         "cautions": cautions,
         "cautions_omitted": cautions_omitted,
         "signers": _signers(m.review if m else None),

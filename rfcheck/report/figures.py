@@ -37,7 +37,30 @@ def _svg(fig, salt: str) -> str:
     fig.savefig(buf, format="svg", metadata={"Date": None}, bbox_inches="tight")
     plt.close(fig)
     text = buf.getvalue()
-    return text[text.index("<svg"):]
+    text = text[text.index("<svg"):]
+    # the RDF block names its vocabularies by http: address; nothing reads it, and the
+    # on-screen page is to carry no network address at all
+    start, end = text.find("<metadata>"), text.find("</metadata>")
+    if 0 <= start < end:
+        text = text[:start] + text[end + len("</metadata>"):].lstrip("\n")
+    return _prefix_ids(text, salt)
+
+
+def _prefix_ids(svg: str, prefix: str) -> str:
+    """Every id of one figure's SVG (and every reference to it) prefixed with the figure's
+    name: matplotlib numbers its groups figure_1, axes_1 … in each figure, and the figures
+    of one HTML page share one id space."""
+    import re
+
+    ids = set(re.findall(r'\bid="([^"]+)"', svg))
+    if not ids:
+        return svg
+
+    def rename(m: re.Match) -> str:
+        ident = m.group(2)
+        return f"{m.group(1)}{prefix}-{ident}{m.group(3)}" if ident in ids else m.group(0)
+
+    return re.sub(r'(\bid="|href="#|url\(#)([^")]+)([")])', rename, svg)
 
 
 def axis_field_figure(run) -> dict | None:

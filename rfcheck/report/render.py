@@ -31,18 +31,38 @@ def _autoescape(name: str | None) -> bool:
     return not (name or "").endswith(".css")
 
 
-def render_html(run) -> str:
-    """The report as one HTML page. Every value from the run is escaped (autoescape); a name
+#: the two media the one template renders: the PDF (weasyprint) and the on-screen page
+MEDIA = ("pdf", "screen")
+
+
+def render_html(run, medium: str = "pdf") -> str:
+    """The report as one HTML page, for the PDF renderer (``medium="pdf"``: packaged fonts by
+    ``file:`` URL, paged media) or for a browser (``"screen"``: self-contained, see
+    :func:`render_screen_html`). Every value from the run is escaped (autoescape); a name
     the template uses but the context lacks is an error, never an empty string
     (StrictUndefined). Only the figures' SVG, made by matplotlib, is inserted as markup."""
     import jinja2
 
+    if medium not in MEDIA:
+        raise ValueError(f"medium must be one of {MEDIA}, not {medium!r}")
     env = jinja2.Environment(
         loader=jinja2.FileSystemLoader(str(templates_dir())), autoescape=_autoescape,
         undefined=jinja2.StrictUndefined, trim_blocks=True, lstrip_blocks=True)
     data = report_context.build(run, all_figures(run))
-    data["font_dir"] = _font_dir().as_uri()
+    data["medium"] = medium
+    data["font_dir"] = _font_dir().as_uri() if medium == "pdf" else ""
     return env.get_template("report.html.j2").render(**data)
+
+
+def render_screen_html(run) -> bytes:
+    """The same report as one self-contained HTML page for on-screen review (UTF-8 bytes).
+
+    Same template and context as the PDF. Figures are inline SVG (a raster inside one is a
+    ``data:`` URI); fonts come from the reader's machine (``local()`` DejaVu Sans, else the
+    browser's sans-serif): the page references no file and no network address and needs no
+    script. weasyprint is not imported.
+    """
+    return render_html(run, medium="screen").encode("utf-8")
 
 
 #: what the PDF renderer may read: the templates and the four fonts the stylesheet names
