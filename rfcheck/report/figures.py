@@ -128,8 +128,14 @@ def all_figures(run) -> list[dict]:
     from .figure_window import window_figure
 
     out = []
+    magnet_figures = (axis_field_figure, field_map_figure, fringe_figure)
+    sources = run.model.magnet.sources if getattr(run.model, "magnet", None) else ()
+    has_magnet = any(not (type(src).__name__ == "UniformField" and src.b == 0.0)
+                     for src in sources)
     for make in (axis_field_figure, field_map_figure, window_figure, launch_path_figure, cma_figure,
                  fringe_figure):
+        if make in magnet_figures and not has_magnet:
+            continue  # a source without a magnet (inductive): a flat zero field says nothing
         fig = make(run)
         if fig:
             out.append(fig)
