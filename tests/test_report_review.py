@@ -296,3 +296,24 @@ def test_fetcher_refuses_files_outside_the_package_and_every_network_scheme(no_n
         "http://127.0.0.1:9/a.png", "https://127.0.0.1:9/b.png", "ftp://127.0.0.1:9/c.png",
         "file:///etc/passwd", outside, "FILE:///etc/hostname"])
     assert [u[:5] for u in fetcher.served] == ["data:"]
+
+
+def test_longest_accepted_names_keep_the_verdict_on_the_cover(tmp_path):
+    # the longest texts the spec accepts (rfcheck.limits.TEXT: name 200, description 4000
+    # characters, unbroken): the cover wraps them and cuts the description, so the verdict
+    # and the fingerprint stay on page 1 and the whole description is in the appendix
+    from rfcheck.limits import TEXT
+
+    text = DEMO.read_text(encoding="utf-8")
+    text = re.sub(r'(?m)^name = "[^"]*"', 'name = "' + "N" * TEXT["name"][0] + '"', text, count=1)
+    text = re.sub(r'(?m)^description = "[^"]*"',
+                  'description = "' + "x" * TEXT["description"][0] + '"', text, count=1)
+    spec = tmp_path / "long.toml"
+    spec.write_text(text, encoding="utf-8")
+    result = run(load_spec(spec), load_policy(None))
+    pages = _pages(render_pdf(result))
+    cover = _flat(pages[0])
+    assert verdict_word(result) in cover
+    assert "Fingerprint" in cover
+    assert "whole in the specification appendix" in cover
+    assert ("x" * 4000) in "".join("".join(p.split()) for p in pages[1:])
