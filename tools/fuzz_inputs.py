@@ -1,6 +1,6 @@
 """Hostile inputs for rfcheck: mutated specs, policies and measured-field tables, and one run.
 
-A *case* is built from a seed document (a bundled example) and a list of mutations. Each
+A *case* starts from one of the bundled example files and a list of mutations. Each
 mutation is a plain tuple ``(kind, index, value)`` so that the same mutations can come from
 hypothesis strategies (tests/test_fuzz.py, bounded for CI) or from :class:`random.Random`
 (tools/fuzz.py, the long stand-alone run). :func:`run_case` writes the case into a fresh
