@@ -21,7 +21,7 @@ import stat
 from dataclasses import dataclass
 from pathlib import Path
 
-__all__ = ["SIZE_LIMITS", "InputFileError", "InputFile", "read_input", "max_nesting"]
+__all__ = ["SIZE_LIMITS", "InputFileError", "InputFile", "read_input", "max_nesting", "file_kind"]
 
 #: largest file accepted per kind, bytes, with the reason
 SIZE_LIMITS: dict[str, tuple[int, str]] = {
@@ -51,15 +51,21 @@ class InputFile:
     text: str
 
 
-def _kind_of(mode: int) -> str:
+def file_kind(mode: int) -> str | None:
+    """What a stat mode names, for messages ("a FIFO (named pipe)" …); None for a regular
+    file. Shared by the input reader and the output targets (rfcheck.outputs)."""
+    if stat.S_ISREG(mode):
+        return None
+    if stat.S_ISLNK(mode):
+        return "a symbolic link"
     if stat.S_ISDIR(mode):
         return "a folder"
     if stat.S_ISFIFO(mode):
         return "a FIFO (named pipe)"
-    if stat.S_ISSOCK(mode):
-        return "a socket"
     if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
         return "a device"
+    if stat.S_ISSOCK(mode):
+        return "a socket"
     return "not a regular file"
 
 
@@ -79,7 +85,7 @@ def read_input(path: str | Path, what: str) -> InputFile:
         raise InputFileError(path, f"cannot read the {what} ({exc.strerror or type(exc).__name__})"
                              ) from None
     if not stat.S_ISREG(st.st_mode):
-        raise InputFileError(path, f"the {what} path is {_kind_of(st.st_mode)}; expected a "
+        raise InputFileError(path, f"the {what} path is {file_kind(st.st_mode)}; expected a "
                                    "regular file")
     if st.st_size > limit:
         raise InputFileError(path, f"the {what} is {st.st_size} bytes; at most {limit} are "
@@ -93,7 +99,7 @@ def read_input(path: str | Path, what: str) -> InputFile:
     try:
         st = os.fstat(fd)
         if not stat.S_ISREG(st.st_mode):
-            raise InputFileError(path, f"the {what} path is {_kind_of(st.st_mode)}; expected a "
+            raise InputFileError(path, f"the {what} path is {file_kind(st.st_mode)}; expected a "
                                        "regular file")
         chunks, size = [], 0
         while size <= limit:

@@ -22,9 +22,10 @@ renames. It changes timing only, never content.
 from __future__ import annotations
 
 import os
-import stat
 import tempfile
 from pathlib import Path
+
+from rfcheck.inputfiles import file_kind
 
 __all__ = ["UsageProblem", "check_destination", "plan", "commit", "write_atomic"]
 
@@ -37,22 +38,6 @@ class UsageProblem(Exception):
 
 def _label(option: str | None, path: Path) -> str:
     return f"{option} {path}" if option else str(path)
-
-
-def _kind(mode: int) -> str | None:
-    if stat.S_ISREG(mode):
-        return None
-    if stat.S_ISLNK(mode):
-        return "a symbolic link"
-    if stat.S_ISDIR(mode):
-        return "a folder"
-    if stat.S_ISFIFO(mode):
-        return "a FIFO (named pipe)"
-    if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
-        return "a device"
-    if stat.S_ISSOCK(mode):
-        return "a socket"
-    return "not a regular file"
 
 
 def check_destination(path: Path, option: str | None = None) -> Path:
@@ -71,7 +56,7 @@ def check_destination(path: Path, option: str | None = None) -> Path:
     except OSError as exc:
         raise UsageProblem(f"{_label(option, path)}: cannot inspect the target: "
                            f"{exc.strerror}") from None
-    kind = _kind(mode)
+    kind = file_kind(mode)
     if kind == "a folder":
         raise UsageProblem(f"{_label(option, path)} is a folder; give a file name")
     if kind:

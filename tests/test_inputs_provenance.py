@@ -22,19 +22,8 @@ from rfcheck.rules.policy import load_policy
 from rfcheck.run import InputRecord, run
 from rfcheck.spec import InputError, load_spec
 
-# a site table of reference levels (invented site rule), as in tests/test_spec_exposure.py
-SITE = '''["site-2026"]
-title = "Site levels 2026"
-standard = "Invented site rule 7, after ICNIRP 2020 Table 5"
-edition = "2026"
-population = "occupational"
-scope = "whole-body"
-averaging_time = "30 min"
-confidence = "H (the site's own table)"
-segments = [
-  { f_min = 1e8, f_max = 3e11, quantity = "S", coefficient = 20.0, exponent = 0.0 },
-]
-'''
+# a site table of reference levels (invented site rule), shared with test_spec_exposure.py
+from test_spec_exposure import SITE  # noqa: E402
 # an on-axis table in SI-equivalent gauss and a uniform 40 mT map: two measured files with the
 # same base name in two folders (their attachments must still get distinct names)
 AXIS_CSV = "z [mm], B [G]\n0, 600\n100, 450\n200, 350\n300, 250\n"

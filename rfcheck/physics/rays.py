@@ -96,6 +96,44 @@ def _unit(v: np.ndarray) -> np.ndarray:
     return v / norm
 
 
+def _common_arguments(frequency, max_length, mode, max_evaluations) -> tuple[float, str]:
+    """The checked frequency (Hz) and branch name shared by every tracer."""
+    f = float(frequency)
+    if not (math.isfinite(f) and f > 0):
+        raise ValueError("frequency must be a positive finite number (Hz)")
+    if not (math.isfinite(max_length) and max_length > 0):
+        raise ValueError("max_length must be a positive finite length (m)")
+    key = str(mode).upper()
+    if key not in ("R", "L", "O", "X"):
+        raise ValueError(f"mode must be one of 'R', 'L', 'O', 'X', got {mode!r}")
+    check_index("max_evaluations", max_evaluations, 1, 10_000_000)
+    return f, key
+
+
+def _medium(b_field, density):
+    """(field vectors, non-negative densities) of the user's callables at (N, 3) points."""
+    def medium(points):
+        b = np.asarray(b_field(points), dtype=float).reshape(-1, 3)
+        n = np.asarray(density(points), dtype=float).reshape(-1)
+        return b, np.maximum(n, 0.0)
+
+    return medium
+
+
+def _branch(f: float, key: str, ions):
+    """n²(field vectors, densities, N vectors[, ν]) of one labelled branch (broadcast rows);
+    θ from N·B, taken as 0 where B or N vanishes."""
+    def n2(bvec, n_e, nvec, nu_=0.0):
+        bmag = np.linalg.norm(bvec, axis=-1)
+        nmag = np.linalg.norm(nvec, axis=-1)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            cos = np.einsum("...i,...i->...", bvec, nvec) / (bmag * nmag)
+        cos = np.where(np.isfinite(cos), np.clip(np.abs(cos), 0.0, 1.0), 1.0)
+        return n2_branch(f, bmag, n_e, np.arccos(cos), key, ions, nu_)
+
+    return n2
+
+
 def _diagnostics(n2, medium, path, nvecs, omega_c: float, h: float) -> tuple[float, np.ndarray]:
     """(residual, go_parameter) along a path: the largest |N·N − n²| / max(1, N·N) and
     1/(k L) with L = n²/|∇n²| (one medium call on 7 points per path point)."""
@@ -155,15 +193,7 @@ def trace_ray(frequency: float, start, direction, mode: str,
     """
     from scipy.integrate import solve_ivp
 
-    f = float(frequency)
-    if not (math.isfinite(f) and f > 0):
-        raise ValueError("frequency must be a positive finite number (Hz)")
-    if not (math.isfinite(max_length) and max_length > 0):
-        raise ValueError("max_length must be a positive finite length (m)")
-    key = str(mode).upper()
-    if key not in ("R", "L", "O", "X"):
-        raise ValueError(f"mode must be one of 'R', 'L', 'O', 'X', got {mode!r}")
-    check_index("max_evaluations", max_evaluations, 1, 10_000_000)
+    f, key = _common_arguments(frequency, max_length, mode, max_evaluations)
     r0 = np.asarray(start, dtype=float).reshape(3)
     if not np.all(np.isfinite(r0)):
         raise ValueError("start must be a finite 3-vector (m)")
@@ -172,20 +202,8 @@ def trace_ray(frequency: float, start, direction, mode: str,
     nu = float(collision_frequency)
     lossy = nu > 0.0
 
-    def medium(points):
-        b = np.asarray(b_field(points), dtype=float).reshape(-1, 3)
-        n = np.asarray(density(points), dtype=float).reshape(-1)
-        return b, np.maximum(n, 0.0)
-
-    def n2(bvec, n_e, nvec, nu_=0.0):
-        """n² of the branch for field vectors, densities and N vectors (broadcast rows)."""
-        bmag = np.linalg.norm(bvec, axis=-1)
-        nmag = np.linalg.norm(nvec, axis=-1)
-        with np.errstate(invalid="ignore", divide="ignore"):
-            cos = np.einsum("...i,...i->...", bvec, nvec) / (bmag * nmag)
-        cos = np.where(np.isfinite(cos), np.clip(np.abs(cos), 0.0, 1.0), 1.0)
-        theta = np.arccos(cos)
-        return n2_branch(f, bmag, n_e, theta, key, ions, nu_)
+    medium = _medium(b_field, density)
+    n2 = _branch(f, key, ions)
 
     evaluations = [0]
 
@@ -389,15 +407,7 @@ def trace_rays(frequency: float, starts, directions, mode: str, b_field, density
     """
     from scipy.integrate import solve_ivp
 
-    f = float(frequency)
-    if not (math.isfinite(f) and f > 0):
-        raise ValueError("frequency must be a positive finite number (Hz)")
-    if not (math.isfinite(max_length) and max_length > 0):
-        raise ValueError("max_length must be a positive finite length (m)")
-    key = str(mode).upper()
-    if key not in ("R", "L", "O", "X"):
-        raise ValueError(f"mode must be one of 'R', 'L', 'O', 'X', got {mode!r}")
-    check_index("max_evaluations", max_evaluations, 1, 10_000_000)
+    f, key = _common_arguments(frequency, max_length, mode, max_evaluations)
     r0 = np.asarray(starts, dtype=float).reshape(-1, 3)
     d0 = np.asarray(directions, dtype=float).reshape(-1, 3)
     if d0.shape[0] == 1 and r0.shape[0] > 1:
@@ -415,18 +425,8 @@ def trace_rays(frequency: float, starts, directions, mode: str, b_field, density
     omega_c = 2.0 * math.pi * f / C_LIGHT
     nu = float(collision_frequency)
 
-    def n2(bvec, n_e, nvec, nu_=0.0):
-        bmag = np.linalg.norm(bvec, axis=-1)
-        nmag = np.linalg.norm(nvec, axis=-1)
-        with np.errstate(invalid="ignore", divide="ignore"):
-            cos = np.einsum("...i,...i->...", bvec, nvec) / (bmag * nmag)
-        cos = np.where(np.isfinite(cos), np.clip(np.abs(cos), 0.0, 1.0), 1.0)
-        return n2_branch(f, bmag, n_e, np.arccos(cos), key, ions, nu_)
-
-    def medium(points):
-        b = np.asarray(b_field(points), dtype=float).reshape(-1, 3)
-        n = np.asarray(density(points), dtype=float).reshape(-1)
-        return b, np.maximum(n, 0.0)
+    n2 = _branch(f, key, ions)
+    medium = _medium(b_field, density)
 
     b_s, n_s = medium(r0)
     n2_s = np.real(np.asarray(n2(b_s, n_s, d0))).reshape(-1)
