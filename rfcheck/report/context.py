@@ -195,6 +195,7 @@ def build(run, figures: list[dict] | None = None) -> dict:
                  if f.status in (Status.FAIL, Status.ERROR, Status.WARN, Status.WAIVED)]
     m = run.model
     from .budget import budget_rows
+    from .glance import glance
     from .cautions import select_cautions
 
     cautions, cautions_omitted = select_cautions(m, run.findings)
@@ -222,6 +223,7 @@ def build(run, figures: list[dict] | None = None) -> dict:
         "characteristics": _characteristic_rows(run.characteristics),
         "figures": figures or [],
         "power_budget": budget_rows(run),
+        "glance": glance(run),
         "cautions": cautions,
         "cautions_omitted": cautions_omitted,
         "signers": _signers(m.review if m else None),
