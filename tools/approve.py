@@ -28,6 +28,7 @@ CASES = (
     ("icp-etch-source.toml", None),
     ("pm-ecr-thruster.toml", None),
     ("ech-launcher-140ghz.toml", None),
+    ("dual-frequency-min-b.toml", None),
 )
 
 

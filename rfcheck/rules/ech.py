@@ -332,12 +332,13 @@ def resonance_separation(ctx: Context, *, min_separation: float) -> Iterator[Fin
     electrons, and a frequency drift can merge them.
 
     Equation
-    B_ECR = 2π f m_e / e (0.5179 T at 14.5 GHz, 0.6429 T at 18 GHz); separation = least
+    B_ECR = 2π f m_e / e (0.5179 T at 14.5 GHz, 0.6430 T at 18 GHz); separation = least
     |z_1 − z_2| on the axis and |r_1 − r_2| across the centre.
 
     Options
-    min_separation: default 5 mm (from memory: several electron Larmor radii and more than
-    the resonance zone's own width at the field gradients of minimum-B sources).
+    min_separation: default 2 mm (four Larmor radii of a 10 keV electron at 0.6 T, 0.52 mm
+    each: an electron heated on one surface does not gyrate across the other; a planning
+    value, from memory).
 
     References
     Z. Q. Xie & C. M. Lyneis, Rev. Sci. Instrum. 66 (1995) 4218 (two-frequency heating,
