@@ -80,7 +80,9 @@ def _optical_depth(ctx: Context, feed: Feed, scheme: str):
 
 def _oblique_text(path) -> tuple[str, float]:
     """N∥ of the launch (vacuum: N = 1) and what it means for the forms."""
-    theta = path.theta if path.theta is not None else math.pi / 2
+    if path.theta is None:
+        return "N∥ = 0 (perpendicular launch)", 0.0
+    theta = path.theta
     return f"N∥ = cos θ = {math.cos(theta):.3g} at θ = {math.degrees(theta):.3g}° to B", \
         math.cos(theta)
 
