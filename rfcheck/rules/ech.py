@@ -140,11 +140,14 @@ def optical_depth(ctx: Context, *, min_optical_depth: float) -> Iterator[Finding
         oblique, n_par = _oblique_text(path)
         mu_lo = t_lo / M_E_C2_EV
         x_all = np.broadcast_to(od_lo.density_ratio, grid.shape)
-        x_lo, x_hi = float(np.nanmin(x_all)), float(np.nanmax(x_all))
+        x_ok = x_all[np.isfinite(x_all) & np.isfinite(tau_lo)]
+        x_lo, x_hi = (float(x_ok.min()), float(x_ok.max())) if x_ok.size else (math.nan, math.nan)
         doppler = (f"; {oblique} > √(T_e/m_e c²) = {math.sqrt(mu_lo):.3g} at the lowest T_e: "
                    "Doppler-broadened layer, the perpendicular τ is an order-of-magnitude "
                    "estimate" if n_par > math.sqrt(mu_lo) else f"; {oblique}")
-        limits = (f"X here {x_lo:.3g}–{x_hi:.3g}, T_e {t_lo:.4g}–{t_hi:.4g} eV "
+        x_text = (f"X at the layer {x_lo:.3g}–{x_hi:.3g}" if math.isfinite(x_lo)
+                  else "X at the layer undefined (no layer)")
+        limits = (f"{x_text}, T_e {t_lo:.4g}–{t_hi:.4g} eV "
                   f"(form limit {MAX_TEMPERATURE_EV / 1e3:.3g} keV)")
         if not math.isfinite(worst):
             idx = np.unravel_index(int(np.argmax(np.where(np.isnan(tau_lo), 1, 0))), grid.shape)

@@ -114,3 +114,34 @@ def test_disc_rise_fails_above_the_declared_limit(write_spec):
     text = ECH.replace('max_temperature_rise = "60 K"', 'max_temperature_rise = "0.2 K"')
     f = _one(_run(write_spec, text), "window.disc-temperature")
     assert f.status.value == "fail" and f.limit.value == pytest.approx(0.2)
+
+
+def test_no_layer_on_the_path_fails_the_optical_depth(write_spec):
+    # a third of the current: |B| stays below B_ce = 5.00 T (2π f m_e/e) everywhere
+    text = ECH.replace('current = "380 A"', 'current = "120 A"')
+    f = _one(_run(write_spec, text), "ech.optical-depth")
+    assert f.status.value == "warn" and f.measured.value is None
+    assert "no resonance layer" in f.message and "Bornatici" in f.message
+
+
+def test_a_frequency_below_the_receiving_line_cutoff_is_not_counted(write_spec):
+    # the klystron moved to 8 GHz: below the TE10 cutoff of WR-51, c/(2 × 12.954 mm) = 11.57 GHz
+    # (Pozar §3.3), so none of it can enter the TWT's line
+    text = DUAL.replace('frequency = "14.5 GHz"', 'frequency = "8 GHz"')
+    f = _one(_run(write_spec, text), "ech.cross-coupling", "feed twt, ignition")
+    assert f.measured.value == 0.0 and "cannot enter" in f.message
+    assert f.status.value == "pass"
+
+
+@pytest.mark.parametrize("old, new, key", [
+    ('mitre_bends = 6', 'mitre_bends = -1', "transmission.mitre_bends"),
+    ('length = "30 m", mitre_bends', 'length = "30 kHz", mitre_bends', "transmission.length"),
+])
+def test_bad_line_run_is_refused_with_key_and_line(write_spec, old, new, key):
+    from rfcheck.spec import InputError, load_spec
+
+    text = ECH.replace(old, new)
+    with pytest.raises(InputError) as exc:
+        load_spec(write_spec(text))
+    line = next(i for i, s in enumerate(text.splitlines(), 1) if "transmission =" in s)
+    assert f":{line}:" in str(exc.value) and key in str(exc.value)
