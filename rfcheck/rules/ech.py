@@ -502,8 +502,9 @@ def cross_coupling(ctx: Context, *, max_fraction: float) -> Iterator[Finding]:
     frequency off are the remedies; the spec does not describe them.
 
     Why it matters
-    Dual-frequency sources have lost generators to the other generator's power entering
-    through the cavity, above all at ignition, when nothing absorbs it.
+    The other generator's power can enter a feed's line through the cavity, above all at
+    ignition, when no plasma absorbs it; a klystron or TWT output taking it is not protected
+    by its own circulator if the frequency lies outside that circulator's band.
 
     Equation
     P_in,i = Σ_{j≠i} P_j · |Γ_p,j|² (running), Σ_{j≠i} P_j · |Γ_cold,j|² (ignition).
