@@ -20,6 +20,7 @@ from __future__ import annotations
 
 import math
 import re
+import warnings
 from pathlib import Path
 
 import numpy as np
@@ -52,7 +53,15 @@ def run():
     from rfcheck.run import run as run_
     from rfcheck.spec import load_spec
 
-    return run_(load_spec(SPEC), load_policy(None))
+    # under warnings-as-errors: odd input never prints a NumPy or library warning
+    # (DEVELOPERS.md, "Physics on odd input"); an error finding would show a rule that raised
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        return run_(load_spec(SPEC), load_policy(None))
+
+
+def test_no_rule_raised_and_no_warning_was_printed(run):
+    assert not [f for f in run.findings if f.status.value == "error"]
 
 
 def _one(run, rule, subject=None):
