@@ -535,9 +535,9 @@ def eh_transition(ctx: Context, feed: Feed) -> tuple[float, dict[str, float]]:
       applies="inductive feeds that declare their coil")
 def h_mode(ctx: Context, *, min_ratio: float) -> Iterator[Finding]:
     """What it checks
-    The E-to-H transition density n_EH of the coil and plasma (the density at which the
-    plasma's resistance seen by the coil is largest, at fixed coil current; the transformer
-    model over the envelope's electron temperature, neutral pressure and frequency, the
+    The E-to-H transition density n_EH of the coil and plasma (the density of the first
+    maximum over density of the plasma's resistance seen by the coil, at fixed coil current;
+    the transformer model over the envelope's electron temperature, neutral pressure and frequency, the
     largest n_EH taken) against the envelope's lowest density: n_min / n_EH ≥ min_ratio.
     The transition density is also stated as a characteristic of the source.
 
@@ -549,8 +549,8 @@ def h_mode(ctx: Context, *, min_ratio: float) -> Iterator[Finding]:
     density range then flips between modes.
 
     Equation
-    R_ind(n) = Re ω²L12²/(R_p + jω(L_mp + L_e)); n_EH = argmax_n R_ind(n) (∝ n below, ∝ n^-1/2
-    above in the thin-skin limit).
+    R_ind(n) = Re ω²L12²/(R_p + jω(L_mp + L_e)); n_EH = its first maximum over n (∝ n below,
+    ∝ n^-1/2 above in the thin-skin limit).
 
     Options
     min_ratio: default 1.5 (common practice, from memory: transitions show hysteresis and the

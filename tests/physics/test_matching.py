@@ -97,3 +97,28 @@ def test_bad_ladders_refused():
     with pytest.raises(ValueError):
         match_network([Element("capacitor", "shunt", 1e-9, 1e-12),
                        Element("capacitor", "series", 1e-12, 1e-9)], 1 + 1j, F)
+
+
+def test_every_solution_matches_hypothesis():
+    # property: wherever a solution exists its ladder's input impedance is Z0 (the match
+    # condition that defines it), for loads across an ICP's range and all four L orders
+    from hypothesis import given, settings
+    from hypothesis import strategies as st
+
+    orders = [
+        [Element("capacitor", "shunt", 1e-13, 1e-7), Element("capacitor", "series", 1e-13, 1e-7)],
+        [Element("capacitor", "shunt", 1e-13, 1e-7), Element("inductor", "series", 1e-10, 1e-3)],
+        [Element("capacitor", "series", 1e-13, 1e-7), Element("capacitor", "shunt", 1e-13, 1e-7)],
+        [Element("inductor", "series", 1e-10, 1e-3), Element("capacitor", "shunt", 1e-13, 1e-7)],
+    ]
+
+    @settings(max_examples=200, deadline=None)
+    @given(st.floats(0.1, 500.0), st.floats(-1000.0, 1000.0), st.sampled_from(range(4)))
+    def check(r, x, which):
+        els = orders[which]
+        m = match_network(els, complex(r, x), F)
+        if np.isfinite(m.margin):
+            zin = complex(input_impedance(els, m.values, complex(r, x), F))
+            assert zin == pytest.approx(50.0, rel=1e-8, abs=1e-8)
+
+    check()

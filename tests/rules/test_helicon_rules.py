@@ -116,3 +116,16 @@ def test_no_antenna_is_not_applicable(model, policy):
     feed = dataclasses.replace(model.feeds[0], antenna=None)
     (f,) = _run(dataclasses.replace(model, feeds=(feed,)), "helicon.antenna-coupling", policy)
     assert f.status is Status.NOT_APPLICABLE and "feed.antenna" in f.message
+
+
+def test_spec_refuses_an_antenna_inside_the_tube(write_spec):
+    from rfcheck.spec import InputError, load_spec
+
+    text = (ROOT / "examples" / "helicon-source.toml").read_text("utf-8")
+    bad = text.replace('length = "150 mm", radius = "60 mm"', 'length = "150 mm", radius = "40 mm"')
+    assert bad != text
+    with pytest.raises(InputError) as exc:
+        load_spec(write_spec(bad))
+    msg = str(exc.value)
+    line = bad[:bad.index('antenna = {')].count("\n") + 1
+    assert f":{line}: feed[antenna].antenna.radius" in msg and "exceed the chamber radius" in msg
