@@ -100,6 +100,11 @@ def test_density_field_relation_by_hand(run):
     # Trivelpiece–Gould merge field 2 m_e ω k/(e k_z) = 3.67 mT, a tenth of the field here
     assert f.details["branch_merge_field_t"] == pytest.approx(3.675e-3, rel=1e-3)
     assert f.details["branch"] == "helicon"
+    # downstream, at the open end (z = 500 mm), the axis field falls to 0.95 × 3.584 mT =
+    # 3.405 mT, below B_TG: the message names the Trivelpiece–Gould branch there
+    assert _axis(0.5) * 1e3 == pytest.approx(3.584, abs=1e-3)
+    assert f"falls to {0.95 * _axis(0.5) * 1e3:.4g} mT at z = 500 mm" in f.message
+    assert "is a Trivelpiece–Gould wave" in f.message
 
 
 def test_lower_hybrid_by_hand(run):

@@ -69,7 +69,9 @@ def antenna_coupling(ctx: Context, *, max_offset: float) -> Iterator[Finding]:
     lie on the helicon branch (field above B_TG = 2 m_e ω k/(e k_z), where the helicon and
     Trivelpiece–Gould roots merge); a point below it is on the Trivelpiece–Gould branch and
     fails, named so. The message gives the density the antenna's k_0 needs at the lowest
-    and the highest field (the density–field relation).
+    and the highest field (the density–field relation), and names the Trivelpiece–Gould
+    branch where the axis field along the column (the whole chamber, every current scale)
+    falls below B_TG for the antenna's k_0 (there the bounded mode at k_0 is on that branch).
 
     Why it matters
     A helicon source reaches its high density only where the plasma's bounded mode matches
@@ -129,6 +131,14 @@ def antenna_coupling(ctx: Context, *, max_offset: float) -> Iterator[Finding]:
                     f"{_mt(b_lo)} and {n_at[1]:.3g} m^-3 at {_mt(b_hi)} (field under the "
                     f"antenna); its half-power band {k_lo:.4g}–{k_hi:.4g} m^-1; the "
                     f"Trivelpiece–Gould branch takes over below about {_mt(b_tg)}")
+        axis = ctx.axis_field()
+        j = np.unravel_index(int(np.argmin(axis)), axis.shape)
+        b_axis_min, z_axis_min = float(axis[j]), float(ctx.axis_z[j[1]])
+        if b_axis_min < b_tg:
+            relation += (f"; along the column the axis field falls to {_mt(b_axis_min)} at "
+                         f"z = {z_axis_min * 1e3:.4g} mm, below that: there the bounded "
+                         "mode at the antenna's k_0 is a Trivelpiece–Gould wave (damped near "
+                         "the wall), not a helicon")
         on_tg = not bool(helicon[idx]) and math.isfinite(kz_w)
         if not math.isfinite(kz_w):
             msg = (f"no helicon at n_e = {n_w:.3g} m^-3, B = {_mt(b_w)}: the drive is not below "
