@@ -87,6 +87,7 @@ COUNTS: dict[str, tuple[int, str]] = {
     "readings": (1_000, "readings of an RF leakage survey"),
     "paths": (200, "leak paths of one source"),
     "feeds": (16, "feeds reaching one leak path"),
+    "elements": (3, "an L network has two elements, a pi or T network three"),
 }
 
 #: longest free text per key, characters; `True` admits line breaks

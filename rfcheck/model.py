@@ -274,6 +274,37 @@ class LineRun:
 
 
 @dataclass(frozen=True)
+class MatchingElement:
+    """One element of a matching network: kind "capacitor" or "inductor", connection "series"
+    or "shunt", and the range it can be set to, [low, high] in F or H."""
+
+    kind: str
+    connection: str
+    low: float
+    high: float
+
+
+@dataclass(frozen=True)
+class MatchingNetwork:
+    """The matching network of an inductive feed: topology "L", "pi" or "T", the generator's
+    impedance (ohm) and the elements, generator side first."""
+
+    topology: str
+    impedance: float
+    elements: tuple[MatchingElement, ...]
+
+
+@dataclass(frozen=True)
+class HeliconAntenna:
+    """The antenna of a helicon feed: type ("nagoya-iii", "half-helical", "saddle"), axial
+    length and strap radius (m)."""
+
+    type: str
+    length: float
+    radius: float
+
+
+@dataclass(frozen=True)
 class InductiveCoil:
     """The RF coil of an inductive feed (a cylindrical coil wound round the discharge tube).
 
@@ -287,6 +318,8 @@ class InductiveCoil:
     length: float  # m
     conductor_diameter: float  # m
     resistance: float | None = None  # ohm
+    matching: MatchingNetwork | None = None  # the matching network, when declared
+    max_voltage: float | None = None  # V peak across the terminals, insulation/clearance rating
 
     @property
     def conductor_length(self) -> float:
@@ -317,6 +350,7 @@ class Feed:
     coil: InductiveCoil | None = None  # inductive feeds: the coil, when declared
     transmission: LineRun | None = None  # the line run (length, bends, losses), when declared
     circulator: str | None = None  # id of the circulator the line passes (shared by id)
+    antenna: HeliconAntenna | None = None  # helicon feeds: the antenna, when declared
 
     @property
     def average_power(self) -> float:

@@ -342,6 +342,49 @@ class InductiveCoilSpec(_Strict):
         None, gt=0, le=1e6, description="measured series resistance of the coil at the drive "
                                         "frequency, ohm; not declared: estimated from the "
                                         "conductor (skin effect only, a lower estimate)")
+    matching: MatchingNetworkSpec | None = Field(
+        None, description="the matching network between the line and the coil, with the "
+                          "ranges its elements can be set to")
+    max_voltage_kv: float | None = Field(
+        None, gt=0, le=1000, description="peak RF voltage across the coil terminals that its "
+                                         "insulation and clearances are rated for, kV peak")
+
+
+class MatchingElementSpec(_Strict):
+    """One element of a matching network, listed from the generator towards the coil."""
+
+    kind: Literal["capacitor", "inductor"]
+    connection: Literal["series", "shunt"] = Field(
+        description="in series with the line, or in shunt across it")
+    capacitance_pf: tuple[float, float] | None = Field(
+        None, description="[low, high] range a capacitor can be set to, pF (a fixed capacitor: "
+                          "its tolerance band)")
+    inductance_uh: tuple[float, float] | None = Field(
+        None, description="[low, high] range an inductor can be set to, µH (a fixed inductor: "
+                          "its tolerance band)")
+
+
+class MatchingNetworkSpec(_Strict):
+    """The matching network between the generator's line and the coil."""
+
+    topology: Literal["L", "pi", "T"]
+    impedance: float = Field(50.0, gt=0, le=1e4, description="the generator's and line's "
+                                                             "impedance, ohm (50 by default)")
+    elements: list[MatchingElementSpec] = Field(
+        min_length=2, max_length=COUNTS["elements"][0],
+        description='generator side first: L { kind = "capacitor", connection = "shunt", '
+                    'capacitance_pf = [50, 1000] } then the series element; pi: shunt, series, '
+                    'shunt; T: series, shunt, series')
+
+
+class HeliconAntennaSpec(_Strict):
+    """The antenna of a helicon feed, round the discharge tube."""
+
+    type: Literal["nagoya-iii", "half-helical", "saddle"] = Field(
+        description="a half-wavelength m = 1 antenna: Nagoya type III, half-turn helical or "
+                    "double saddle")
+    length: PosLength = Field(description="axial length of the antenna (between its end rings)")
+    radius: PosLength = Field(description="radius of the antenna's straps (above the tube)")
 
 
 class TransmissionSpec(_Strict):
@@ -394,6 +437,9 @@ class FeedSpec(_Strict):
     circulator: Id | None = Field(
         None, description="id of the circulator (and its load) this feed's line passes; feeds "
                           "giving the same id share it")
+    antenna: HeliconAntennaSpec | None = Field(
+        None, description='the antenna of a helicon feed: { type = "nagoya-iii", '
+                          'length = "150 mm", radius = "60 mm" }')
 
 
 class MaterialSpec(_Strict):
@@ -755,6 +801,16 @@ class _CrossCheck:
                     self.fail(("feed", i, "coil", "radius"),
                               "the coil's radius must exceed the chamber radius (the coil is "
                               "wound round the discharge tube)")
+                elif f.coil.matching is not None:
+                    self._matching(f.coil.matching, ("feed", i, "coil", "matching"))
+            if f.antenna is not None:
+                if f.absorption != "helicon":
+                    self.fail(("feed", i, "antenna"), "an antenna is declared only for a helicon "
+                                                      "feed (absorption = \"helicon\")")
+                elif not f.antenna.radius > s.chamber.radius:
+                    self.fail(("feed", i, "antenna", "radius"),
+                              "the antenna's radius must exceed the chamber radius (the antenna "
+                              "sits round the discharge tube)")
             self._launch(f, i)
             cc = f.cold_cavity
             if cc is not None:
@@ -789,6 +845,33 @@ class _CrossCheck:
         if self.problems:
             return None  # type: ignore[return-value]
         return self._model(sources, exposure)
+
+    def _matching(self, mn: MatchingNetworkSpec, loc: tuple) -> None:
+        """Element ranges present, positive and ordered; connections those of the topology."""
+        from rfcheck.physics.matching import TOPOLOGIES
+
+        conns = tuple(e.connection for e in mn.elements)
+        if conns not in TOPOLOGIES[mn.topology]:
+            shown = " or ".join(", ".join(t) for t in TOPOLOGIES[mn.topology])
+            self.fail(loc + ("elements",), f"a {mn.topology} network has elements connected "
+                                           f"{shown} (generator side first); found "
+                                           f"{', '.join(conns)}")
+        for j, e in enumerate(mn.elements):
+            key, other = (("capacitance_pf", "inductance_uh") if e.kind == "capacitor"
+                          else ("inductance_uh", "capacitance_pf"))
+            where = loc + ("elements", j)
+            if getattr(e, other) is not None:
+                self.fail(where + (other,), f"a {e.kind} takes {key}, not {other}")
+            rng = getattr(e, key)
+            if rng is None:
+                self.fail(where + (key,), f"expected the {e.kind}'s range [low, high] as {key}")
+                continue
+            lo, hi = rng
+            top = 1e6 if key == "capacitance_pf" else 1e4
+            if not 0 < lo < hi <= top:
+                self.fail(where + (key,), f"expected 0 < low < high ≤ {top:g} "
+                                          f"({'pF' if key == 'capacitance_pf' else 'µH'}), "
+                                          f"found [{lo:g}, {hi:g}]")
 
     def _launch(self, f: FeedSpec, i: int) -> None:
         la = f.launch
@@ -964,7 +1047,7 @@ class _CrossCheck:
                                   f.max_reflected_power_short.duration)
                     if f.max_reflected_power_short else None),
                    _coil(f.coil), transmission=_transmission(f.transmission),
-                   circulator=f.circulator)
+                   circulator=f.circulator, antenna=_antenna(f.antenna))
             for f in s.feed)
         windows = tuple(
             m.Window(w.id, w.feed, w.z,
@@ -997,8 +1080,24 @@ def _coil(c: InductiveCoilSpec | None):
 
     if c is None:
         return None
+    matching = None
+    if c.matching is not None:
+        matching = m.MatchingNetwork(c.matching.topology, float(c.matching.impedance), tuple(
+            m.MatchingElement(e.kind, e.connection,
+                              *(v * (1e-12 if e.kind == "capacitor" else 1e-6)
+                                for v in (e.capacitance_pf if e.kind == "capacitor"
+                                          else e.inductance_uh)))
+            for e in c.matching.elements))
     return m.InductiveCoil(float(c.turns), c.radius, c.length, c.conductor_diameter,
-                           None if c.resistance is None else float(c.resistance))
+                           None if c.resistance is None else float(c.resistance), matching,
+                           None if c.max_voltage_kv is None else float(c.max_voltage_kv) * 1e3)
+
+
+def _antenna(a: HeliconAntennaSpec | None):
+    """The model's HeliconAntenna of a declared antenna (None if not declared)."""
+    from rfcheck import model as m
+
+    return None if a is None else m.HeliconAntenna(a.type, a.length, a.radius)
 
 
 def _transmission(t: TransmissionSpec | None):

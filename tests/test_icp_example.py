@@ -111,3 +111,55 @@ def test_coax_feed_field_by_hand(run):
     # 2 α P with α = R_s (1/a + 1/b)/(2 η0 ln(b/a)) at 13.553 MHz: R_s = 9.605e-4 ohm,
     # (237.16 + 103.06)/m → α = 5.203e-4 Np/m, 2 α · 2 kW = 2.081 W/m
     assert heat == pytest.approx(2.081, abs=0.005)
+
+
+def test_matching_network_at_the_binding_point_by_hand(run):
+    # the pi network: shunt C1 50-1500 pF, series L 0.2-3 µH, shunt C2 10-500 pF (generator
+    # side first); its worst point and binding element C2, re-solved here by hand
+    f = _one(run, "inductive.matching-range")
+    assert f.status.value == "pass" and f.details["points_reached"] == f.details["points"] == 180
+    r, x = f.details["load_ohm"]
+    # the worst point is the lowest density (1e17 m^-3), where the coil's load is
+    # R = 6.70 Ω, X = 234.7 Ω (transformer model; cf. coupling-efficiency's range)
+    assert f.worst_case["density"].value == pytest.approx(1e17)
+    assert r == pytest.approx(6.70, abs=0.01) and x == pytest.approx(234.7, abs=0.1)
+    c2 = float(re.search(r"shunt capacitor 3 at ([0-9.]+) pF", f.message).group(1)) * 1e-12
+    # margin to the nearer end: (500 − 138.7)/490 = 73.7 % or (138.7 − 10)/490 = 26.3 %
+    assert f.measured.value == pytest.approx((c2 - 10e-12) / 490e-12, abs=2e-4)
+    assert f.measured.value == pytest.approx(0.263, abs=1e-3)
+    # with C2 fixed across the coil, Z' = 1/(1/Z_L + jωC2) is matched by the shunt-first L
+    # section in closed form (Pozar §5.1): X'' = √(R'(Z0 − R')), L = (X'' − X')/ω,
+    # C1 = X''/(ω R' Z0); both inside their ranges, and the ladder's Z_in is 50 Ω
+    w = TWO_PI * f.worst_case["frequency"].value
+    zp = 1 / (1 / complex(r, x) + 1j * w * c2)
+    x2 = math.sqrt(zp.real * (50 - zp.real))
+    ind = (x2 - zp.imag) / w
+    c1 = x2 / (w * zp.real * 50.0)
+    z_in = 1 / (1j * w * c1 + 1 / (zp + 1j * w * ind))
+    assert z_in == pytest.approx(50.0, abs=1e-6)
+    assert 0.2e-6 < ind < 3e-6 and 50e-12 < c1 < 1500e-12
+
+
+def test_coil_voltage_by_hand(run):
+    f = _one(run, "inductive.coil-voltage")
+    # |V| = √(2P/R) |Z| at 2 kW and the least R of the envelope (6.70 Ω, X = 234.7 Ω):
+    # √(4000/6.70) · 234.8 = 24.43 A · 234.8 Ω = 5.74 kV, against 0.8 · 10 kV = 8 kV
+    assert f.measured.value == pytest.approx(math.sqrt(4000 / 6.7046) * abs(6.7046 + 234.745j),
+                                             rel=1e-4)
+    assert f.measured.value == pytest.approx(5.74e3, abs=5)
+    assert f.limit.value == pytest.approx(8e3) and f.status.value == "pass"
+    assert "local electrical codes" in f.message
+    # the same voltage as coupling-efficiency's largest
+    assert f.measured.value == pytest.approx(
+        _one(run, "inductive.coupling-efficiency").details["coil_voltage_peak"], rel=1e-12)
+
+
+def test_eh_transition_by_hand(run):
+    f = _one(run, "inductive.h-mode")
+    n_eh = f.details["eh_transition_density"]
+    # the first maximum of the plasma's resistance over density, highest at 4 Pa, 4 eV:
+    # 1.89e16 m^-3, inside the 1e16-1e17 m^-3 of argon ICP transitions (L&L §12.3)
+    assert n_eh == pytest.approx(1.89e16, rel=5e-3)
+    assert f.worst_case["pressure"].value == pytest.approx(4.0)
+    assert f.measured.value == pytest.approx(1e17 / n_eh, rel=1e-12)
+    assert f.status.value == "pass"  # 5.3 × n_EH against 1.5

@@ -29,6 +29,7 @@ CASES = (
     ("pm-ecr-thruster.toml", None),
     ("ech-launcher-140ghz.toml", None),
     ("dual-frequency-min-b.toml", None),
+    ("helicon-source.toml", None),
 )
 
 

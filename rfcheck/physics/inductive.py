@@ -71,6 +71,7 @@ __all__ = [
     "transformer_load",
     "coil_drive",
     "CoilDrive",
+    "eh_transition_density",
 ]
 
 #: ν/ω below which the skin depth is named collisionless (c/ω_pe within ~5 % where ω ≪ ω_pe)
@@ -230,6 +231,61 @@ def coil_drive(power: ArrayLike, impedance: ArrayLike) -> CoilDrive:
     r = np.where(z.real > 0, z.real, np.nan)
     current = np.sqrt(2.0 * np.asarray(power, dtype=float) / r)
     return CoilDrive(current, current * np.abs(z))
+
+
+def eh_transition_density(n_e: ArrayLike, f: ArrayLike, nu: ArrayLike, *, turns: float,
+                          coil_radius: float, coil_length: float,
+                          plasma_radius: float) -> NDArray:
+    """Density of the E-to-H transition by the transformer model, m^-3.
+
+    Criterion: the density at which the plasma's resistance seen by the coil,
+    R_ind(n) = Re ω² L12² / (R_p + jω (L_mp + L_e)) of :func:`transformer_load`, has its
+    first maximum (lowest density; where ν grows with n through electron-ion collisions a
+    second, high-density maximum can follow, which is not a mode transition).
+    At a fixed coil current the inductively absorbed power ½ I² R_ind rises with the density
+    below that point (∝ n while the skin depth exceeds the radius) and falls above it
+    (∝ n^-1/2 in the thin-skin limit), while the particle and energy losses grow ∝ n: only
+    above the maximum is the inductive (H-mode) equilibrium stable; below it the discharge
+    falls back to capacitive (E-mode) coupling. Lieberman & Lichtenberg, 2nd ed., §12.2
+    (absorbed power against density) and §12.3 (E-H transitions, hysteresis) — criterion
+    from memory, confidence medium; real transitions show hysteresis and depend on the
+    capacitive coupling of the coil, which the model leaves out.
+
+    Parameters
+    ----------
+    n_e : array_like
+        Ascending density grid, m^-3, on the last axis (geometric spacing; the maximum is
+        refined by a parabola in log n through the three grid points round it).
+    f, nu : array_like
+        Frequency (Hz) and collision frequency (s^-1), broadcast with n_e.
+    turns, coil_radius, coil_length, plasma_radius : float
+        As for :func:`transformer_load`.
+
+    Returns
+    -------
+    ndarray
+        The transition density (the grid's last axis removed); NaN where the grid holds no
+        interior maximum (it does not bracket one).
+    """
+    n = np.asarray(n_e, dtype=float)
+    load = transformer_load(n, f, nu, turns=turns, coil_radius=coil_radius,
+                            coil_length=coil_length, plasma_radius=plasma_radius)
+    r = np.broadcast_to(load.plasma_resistance, np.broadcast_shapes(n.shape,
+                                                                   load.plasma_resistance.shape))
+    x = np.log(np.broadcast_to(n, r.shape))
+    rr = np.where(np.isnan(r), -np.inf, r)
+    local = np.zeros(r.shape, dtype=bool)
+    local[..., 1:-1] = (rr[..., 1:-1] > rr[..., :-2]) & (rr[..., 1:-1] >= rr[..., 2:])
+    i = np.where(local.any(axis=-1), np.argmax(local, axis=-1), 0)
+    inner = (i > 0) & (i < r.shape[-1] - 1)
+    j = np.clip(i, 1, r.shape[-1] - 2)[..., None]
+    x0, x1, x2 = (np.take_along_axis(x, j + k, axis=-1)[..., 0] for k in (-1, 0, 1))
+    y0, y1, y2 = (np.take_along_axis(r, j + k, axis=-1)[..., 0] for k in (-1, 0, 1))
+    den = (x0 - x1) * (x0 - x2) * (x1 - x2)
+    a = (x2 * (y1 - y0) + x1 * (y0 - y2) + x0 * (y2 - y1)) / den
+    b = (x2**2 * (y0 - y1) + x1**2 * (y2 - y0) + x0**2 * (y1 - y2)) / den
+    peak = np.where(a < 0, -b / (2 * a), x1)
+    return np.where(inner, np.exp(np.clip(peak, x0, x2)), np.nan)
 
 
 guard_public(globals())  # odd input: no NumPy warnings (physics/domain.py)

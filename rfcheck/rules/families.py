@@ -7,3 +7,4 @@ from rfcheck.rules import absorption, access, load  # noqa: F401  (access.*, loa
 from rfcheck.rules import spec_checks  # noqa: F401  (spec.*)
 from rfcheck.rules import inductive  # noqa: F401  (inductive.*)
 from rfcheck.rules import ech  # noqa: F401  (ech.*)
+from rfcheck.rules import helicon  # noqa: F401  (helicon.*)

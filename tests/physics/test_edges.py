@@ -27,6 +27,7 @@ import pytest
 
 import rfcheck.physics as physics
 from rfcheck.physics.fullwave import slab_reflection
+from rfcheck.physics.matching import Element
 from rfcheck.physics.multilayer import Embedding, Layer, embedding_ports, layer_matrix
 from rfcheck.physics.polarisation import characteristic_polarisations
 from rfcheck.physics.waveguide import rectangular_guide
@@ -66,6 +67,8 @@ N_PATH = np.linspace(1e15, 5e16, 41)
 GLASS = Layer(3.8, 1e-4, 0.01)
 SPREAD = LayerSpread((0.0099, 0.01, 0.0101), (3.7, 3.8, 3.9), (1e-4, 1e-4, 2e-4))
 EMB = Embedding()
+MATCH_L = [Element("capacitor", "shunt", 1e-11, 5e-9),
+           Element("capacitor", "series", 5e-12, 1e-9)]
 
 
 def _slab():
@@ -232,6 +235,21 @@ BASE: dict[str, dict] = {
                                        coil_radius=0.1, coil_length=0.1, plasma_radius=0.08,
                                        coil_resistance=0.1),
     "inductive.coil_drive": dict(power=1e3, impedance=np.array([10 + 200j])),
+    "inductive.eh_transition_density": dict(n_e=np.geomspace(1e13, 1e20, 200), f=13.56e6,
+                                            nu=3e7, turns=3, coil_radius=0.11,
+                                            coil_length=0.08, plasma_radius=0.09),
+    "helicon.radial_wavenumber": dict(radius=0.05),
+    "helicon.antenna_wavenumber": dict(antenna_type="nagoya-iii", length=0.15),
+    "helicon.antenna_band": dict(antenna_type="saddle", length=0.15),
+    "helicon.helicon_density": dict(b=0.035, f=13.56e6, k_z=20.9, radius=0.05),
+    "helicon.helicon_wavenumber": dict(n_e=3e18, b=0.035, f=13.56e6, radius=0.05),
+    "helicon.branch_merge_field": dict(f=13.56e6, k_z=20.9, radius=0.05),
+    "helicon.on_helicon_branch": dict(b=0.035, f=13.56e6, k_z=20.9, radius=0.05),
+    "matching.l_section_q": dict(r_high=50.0, r_low=2.0),
+    "matching.element_reactance": dict(kind="capacitor", value=1e-10, f=13.56e6),
+    "matching.input_impedance": dict(elements=MATCH_L, values=np.array([7e-10, 4e-11]),
+                                     z_load=1.2 + 300j, f=13.56e6),
+    "matching.match_network": dict(elements=MATCH_L, z_load=np.array([1.2 + 300j]), f=13.56e6),
     "coaxial.coaxial_field_amplitude": dict(power=1e3, inner_diameter=0.007, outer_diameter=0.016),
     "coaxial.coaxial_peak_field": dict(power=1e3, inner_diameter=0.007, outer_diameter=0.016,
                                        gamma_mag=0.3),
