@@ -67,6 +67,9 @@ KEY_RANGES: dict[str, Range] = {
                        "sintered NdFeB and SmCo magnets reach about 1.5 T"),
     "current_tolerance": Range(0.0, 1.0, "up to 100 %",
                                "a tolerance beyond the current itself is not a tolerance"),
+    "launch_tilt": Range(0.0, 1.5707963267948966 * (1 - 1e-9), "0 to below 90 deg",
+                         "the tilt of a launch from its direction along the axis; at 90 deg "
+                         "the wave no longer advances along the launch direction"),
 }
 
 #: most entries of a list in a spec, with the reason (the key is the list's key)

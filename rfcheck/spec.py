@@ -304,6 +304,18 @@ class MagnetSpec(_Strict):
     field_map: MeasuredSpec | None = None
 
 
+class LaunchBeamSpec(_Strict):
+    """A Gaussian (TEM00) beam sent by the launcher: its 1/e² intensity radius at the waist and
+    where the waist lies along the launch direction from the launcher (negative: behind it)."""
+
+    waist: PosLength = Field(description="1/e² intensity radius at the waist, e.g. \"8 mm\"")
+    waist_distance: Length = Field(0.0, description="distance of the waist ahead of the "
+                                                    "launcher along the launch direction")
+
+
+LaunchTilt = _quantity("angle", non_negative=True, key="launch_tilt")
+
+
 class LaunchSpec(_Strict):
     z: Length
     direction: Literal["+z", "-z"] = "+z"
@@ -317,6 +329,19 @@ class LaunchSpec(_Strict):
     e_angle_to_field: Angle | None = Field(
         None, description="linear polarisation: angle of E from the projection of B on the "
                           "wavefront (0 deg across B: the O mode); not declared: the worst case")
+    x: Length | None = Field(None, description="launcher position off the axis, x (not "
+                                               "declared: on the axis)")
+    y: Length | None = Field(None, description="launcher position off the axis, y (not "
+                                               "declared: on the axis)")
+    tilt: LaunchTilt | None = Field(
+        None, description="angle of the launched wave vector from the launch direction (±z), "
+                          "0 to below 90 deg (not declared: along the axis)")
+    tilt_azimuth: Angle | None = Field(
+        None, description="plane of the tilt: angle from +x towards +y, 0–360 deg (not "
+                          "declared: 0, the tilt towards +x)")
+    beam: LaunchBeamSpec | None = Field(
+        None, description='a Gaussian beam: { waist = "8 mm", waist_distance = "40 mm" } '
+                          '(not declared: a single ray along the launch direction)')
 
 
 class ColdCavitySpec(_Strict):
@@ -774,6 +799,25 @@ class _CrossCheck:
                 self.fail(loc + ("e_angle_to_field",),
                           f"{math.degrees(la.e_angle_to_field):.4g} deg is outside 0–90 deg "
                           "(the angle between E and the projection of B on the wavefront)")
+        self._launch_rays(la, loc)
+
+    def _launch_rays(self, la: LaunchSpec, loc: tuple) -> None:
+        """The off-axis, oblique and beam keys of a launch: inside the chamber's radius."""
+        radius = self.spec.chamber.radius
+        off = math.hypot(la.x or 0.0, la.y or 0.0)
+        if off >= radius:
+            key = "x" if la.x is not None and abs(la.x) >= abs(la.y or 0.0) else "y"
+            self.fail(loc + (key,),
+                      f"the launcher lies {off * 1e3:.4g} mm off the axis, at or beyond the "
+                      f"chamber radius ({radius * 1e3:.4g} mm); expected less than the radius")
+        if la.tilt_azimuth is not None and la.tilt is None:
+            self.fail(loc + ("tilt_azimuth",), "tilt_azimuth names the plane of a tilt; give "
+                                               "tilt too (e.g. tilt = \"10 deg\")")
+        if la.beam is not None and off + la.beam.waist >= radius:
+            self.fail(loc + ("beam", "waist"),
+                      f"the beam (waist {la.beam.waist * 1e3:.4g} mm, {off * 1e3:.4g} mm off "
+                      f"the axis) does not fit inside the chamber radius "
+                      f"({radius * 1e3:.4g} mm); expected off-axis distance + waist below it")
 
     def _window_place(self, w: WindowSpec, f: FeedSpec, i: int) -> None:
         """A window sits in its feed's line: at or behind the launcher, never in the plasma
@@ -925,7 +969,10 @@ class _CrossCheck:
                    f.max_reflected_power, f.line,
                    m.Launch(f.launch.z, 1 if f.launch.direction == "+z" else -1, f.launch.mode,
                             min(f.launch.angle_to_field, math.pi / 2), f.launch.polarisation,
-                            f.launch.e_angle_to_field),
+                            f.launch.e_angle_to_field, f.launch.x or 0.0, f.launch.y or 0.0,
+                            f.launch.tilt or 0.0, f.launch.tilt_azimuth or 0.0,
+                            (m.LaunchBeam(f.launch.beam.waist, f.launch.beam.waist_distance)
+                             if f.launch.beam else None)),
                    f.absorption, _cold_gamma(f.cold_cavity), f.ignition_time,
                    (m.ShortRating(f.max_reflected_power_short.power,
                                   f.max_reflected_power_short.duration)
