@@ -686,12 +686,52 @@ def _locate_stops(stopped, idx, y0, y1, h, q, names, rounds: int = 4):
     return state(x)
 
 
+def _beam_rays(frequency: float, start, direction, waist: float, *, waist_distance: float = 0.0,
+              rings: int = 3, per_ring: int = 8):
+    """Start points, directions and power shares of rays sampling a Gaussian beam on the plane
+    through `start` normal to `direction`, the waist lying `waist_distance` (m) ahead of it
+    (negative: behind it).
+
+    TEM00 beam in free space (Siegman, *Lasers*, ch. 17): Rayleigh length z_R = π w0²/λ, at a
+    distance z from the waist the radius w(z) = w0 √(1 + (z/z_R)²) and the phase front's
+    radius of curvature R(z) = z (1 + (z_R/z)²). The samples of :func:`beam_samples` are
+    scaled to w(z) (same power shares: the profile keeps its shape) and each ray leaves
+    normal to the phase front, at the angle atan(ρ/R(z)) from the axis: converging towards a
+    waist ahead, diverging from one behind. At the waist (waist_distance 0) this is
+    :func:`beam_samples` with parallel rays. Returns (points (K, 3), directions (K, 3), shares
+    (K,)).
+    """
+    f = float(frequency)
+    if not (math.isfinite(f) and f > 0):
+        raise ValueError("frequency must be a positive finite number (Hz)")
+    zd = float(waist_distance)
+    if not math.isfinite(zd):
+        raise ValueError("waist_distance must be a finite length (m)")
+    d = _unit(np.asarray(direction, dtype=float).reshape(3))
+    c = np.asarray(start, dtype=float).reshape(3)
+    points, shares = beam_samples(c, d, waist, rings=rings, per_ring=per_ring)
+    z = -zd  # position of the sample plane measured from the waist along the beam
+    z_r = math.pi * float(waist) ** 2 * f / C_LIGHT
+    grow = math.sqrt(1.0 + (z / z_r) ** 2)
+    offsets = (points - c) * grow
+    # slope of a ray at radius ρ: ρ / R(z) = ρ z / (z² + z_R²)
+    slope = z / (z * z + z_r * z_r)
+    dirs = d[None, :] + slope * offsets
+    dirs /= np.linalg.norm(dirs, axis=1)[:, None]
+    return c + offsets, dirs, shares
+
+
 def trace_beam(frequency: float, waist_position, direction, waist: float, mode: str,
-               b_field, density, *, rings: int = 3, per_ring: int = 8, **options) -> Beam:
-    """Trace a Gaussian beam as a bundle of rays (:func:`beam_samples`, :func:`trace_rays`)."""
-    points, shares = beam_samples(waist_position, direction, waist, rings=rings,
-                                  per_ring=per_ring)
-    rays = trace_rays(frequency, points, direction, mode, b_field, density, **options)
+               b_field, density, *, rings: int = 3, per_ring: int = 8,
+               waist_distance: float = 0.0, **options) -> Beam:
+    """Trace a Gaussian beam as a bundle of rays (:func:`_beam_rays`, :func:`trace_rays`).
+
+    With `waist_distance` 0 the rays start at the waist (`waist_position`), parallel; else
+    they start on the plane through `waist_position` with the waist that far ahead."""
+    points, dirs, shares = _beam_rays(frequency, waist_position, direction, waist,
+                                     waist_distance=waist_distance, rings=rings,
+                                     per_ring=per_ring)
+    rays = trace_rays(frequency, points, dirs, mode, b_field, density, **options)
     return Beam(rays, shares)
 
 
