@@ -241,6 +241,17 @@ class LaunchBeam:
 
 
 @dataclass(frozen=True)
+class LaunchTarget:
+    """The intended deposition region of a launch: z_start..z_end (m) within `radius` of the
+    axis (None: the chamber radius); `label` says how the spec gave it."""
+
+    z_start: float
+    z_end: float
+    radius: float | None = None
+    label: str = ""
+
+
+@dataclass(frozen=True)
 class Launch:
     """Where and how a feed launches its wave.
 
@@ -263,6 +274,7 @@ class Launch:
     tilt: float = 0.0  # rad, angle of k from the launch direction (±z), 0..<π/2
     tilt_azimuth: float = 0.0  # rad, plane of the tilt, from +x towards +y
     beam: LaunchBeam | None = None  # a Gaussian beam; None: a single ray
+    target: LaunchTarget | None = None  # the intended deposition region
 
     @property
     def off_axis(self) -> float:

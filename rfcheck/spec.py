@@ -316,6 +316,19 @@ class LaunchBeamSpec(_Strict):
 LaunchTilt = _quantity("angle", non_negative=True, key="launch_tilt")
 
 
+class LaunchTargetSpec(_Strict):
+    """Where the launch is meant to deposit its power: a slice of the chamber (start, end)
+    or a landmark with a half width, optionally within a radius of the axis."""
+
+    landmark: Id | None = Field(None, description="a chamber landmark id (with half_width)")
+    half_width: PosLength | None = Field(None, description="half the axial width of the "
+                                                           "region round the landmark")
+    start: Length | None = Field(None, description="axial start of the region (with end)")
+    end: Length | None = Field(None, description="axial end of the region (with start)")
+    radius: PosLength | None = Field(None, description="largest distance from the axis "
+                                                       "(not declared: the chamber radius)")
+
+
 class LaunchSpec(_Strict):
     z: Length
     direction: Literal["+z", "-z"] = "+z"
@@ -342,6 +355,9 @@ class LaunchSpec(_Strict):
     beam: LaunchBeamSpec | None = Field(
         None, description='a Gaussian beam: { waist = "8 mm", waist_distance = "40 mm" } '
                           '(not declared: a single ray along the launch direction)')
+    target: LaunchTargetSpec | None = Field(
+        None, description='the intended deposition region: { start = "120 mm", end = '
+                          '"180 mm" } or { landmark = "resonance-zone", half_width = "10 mm" }')
 
 
 class ColdCavitySpec(_Strict):
@@ -813,6 +829,25 @@ class _CrossCheck:
         if la.tilt_azimuth is not None and la.tilt is None:
             self.fail(loc + ("tilt_azimuth",), "tilt_azimuth names the plane of a tilt; give "
                                                "tilt too (e.g. tilt = \"10 deg\")")
+        t = la.target
+        if t is not None:
+            landmarks = {lm.id for lm in self.spec.chamber.landmarks}
+            if (t.landmark is None) == (t.start is None and t.end is None):
+                self.fail(loc + ("target",), "give either a landmark (with half_width) or "
+                                             "start and end, not both and not neither")
+            elif t.landmark is not None:
+                if t.landmark not in landmarks:
+                    self.fail(loc + ("target", "landmark"),
+                              f"no chamber landmark '{t.landmark}'; expected one of "
+                              f"{', '.join(sorted(landmarks)) or '(none declared)'}")
+                if t.half_width is None:
+                    self.fail(loc + ("target", "half_width"),
+                              "a landmark target needs half_width (e.g. \"10 mm\")")
+            elif t.start is None or t.end is None:
+                self.fail(loc + ("target", "end" if t.end is None else "start"),
+                          "a target slice needs both start and end")
+            elif not t.end > t.start:
+                self.fail(loc + ("target", "end"), "end must lie beyond start")
         if la.beam is not None and off + la.beam.waist >= radius:
             self.fail(loc + ("beam", "waist"),
                       f"the beam (waist {la.beam.waist * 1e3:.4g} mm, {off * 1e3:.4g} mm off "
@@ -972,7 +1007,8 @@ class _CrossCheck:
                             f.launch.e_angle_to_field, f.launch.x or 0.0, f.launch.y or 0.0,
                             f.launch.tilt or 0.0, f.launch.tilt_azimuth or 0.0,
                             (m.LaunchBeam(f.launch.beam.waist, f.launch.beam.waist_distance)
-                             if f.launch.beam else None)),
+                             if f.launch.beam else None),
+                            _launch_target(f.launch.target, s.chamber)),
                    f.absorption, _cold_gamma(f.cold_cavity), f.ignition_time,
                    (m.ShortRating(f.max_reflected_power_short.power,
                                   f.max_reflected_power_short.duration)
@@ -997,6 +1033,20 @@ class _CrossCheck:
             review=m.Review(s.review.prepared_by, s.review.checked_by, s.review.approved_by,
                             s.review.notes),
         )
+
+
+def _launch_target(t: LaunchTargetSpec | None, chamber):
+    """The model's LaunchTarget of a declared target (a landmark resolved to its slice)."""
+    from rfcheck import model as m
+
+    if t is None:
+        return None
+    if t.landmark is not None:
+        z = next(lm.z for lm in chamber.landmarks if lm.id == t.landmark)
+        return m.LaunchTarget(z - t.half_width, z + t.half_width, t.radius,
+                              f"landmark {t.landmark} ± {t.half_width * 1e3:.4g} mm")
+    return m.LaunchTarget(t.start, t.end, t.radius,
+                          f"z = {t.start * 1e3:.4g}–{t.end * 1e3:.4g} mm")
 
 
 def _pressure_span(p) -> m.Span:
