@@ -815,10 +815,12 @@ class _CrossCheck:
                 self.fail(loc + ("e_angle_to_field",),
                           f"{math.degrees(la.e_angle_to_field):.4g} deg is outside 0–90 deg "
                           "(the angle between E and the projection of B on the wavefront)")
-        self._launch_rays(la, loc)
+        self._launch_rays(f, la, loc)
 
-    def _launch_rays(self, la: LaunchSpec, loc: tuple) -> None:
+    def _launch_rays(self, f: FeedSpec, la: LaunchSpec, loc: tuple) -> None:
         """The off-axis, oblique and beam keys of a launch: inside the chamber's radius."""
+        from rfcheck.physics.constants import C as C_LIGHT
+
         radius = self.spec.chamber.radius
         off = math.hypot(la.x or 0.0, la.y or 0.0)
         if off >= radius:
@@ -848,7 +850,13 @@ class _CrossCheck:
                           "a target slice needs both start and end")
             elif not t.end > t.start:
                 self.fail(loc + ("target", "end"), "end must lie beyond start")
-        if la.beam is not None and off + la.beam.waist >= radius:
+        if la.beam is not None and la.beam.waist < C_LIGHT / (math.pi * f.frequency):
+            self.fail(loc + ("beam", "waist"),
+                      f"a waist of {la.beam.waist * 1e3:.4g} mm is below λ/π = "
+                      f"{C_LIGHT / (math.pi * f.frequency) * 1e3:.4g} mm at "
+                      f"{f.frequency / 1e9:.4g} GHz: such a beam diverges by more than "
+                      "1 rad (λ/(π w0)) and is no paraxial beam; expected at least λ/π")
+        elif la.beam is not None and off + la.beam.waist >= radius:
             self.fail(loc + ("beam", "waist"),
                       f"the beam (waist {la.beam.waist * 1e3:.4g} mm, {off * 1e3:.4g} mm off "
                       f"the axis) does not fit inside the chamber radius "

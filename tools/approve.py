@@ -27,6 +27,7 @@ CASES = (
     ("min-b-ion-source.toml", "min-b-site-policy.toml"),
     ("icp-etch-source.toml", None),
     ("pm-ecr-thruster.toml", None),
+    ("oblique-beam-reactor.toml", None),
 )
 
 
