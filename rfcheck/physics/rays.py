@@ -163,16 +163,19 @@ class GridField:
     ``GridField(values, low, high, spacing)`` evaluates ``values(points) -> (N, C)`` once on
     the grid of the box ``low``–``high`` (m, 3-vectors), extended by ``pad`` cells on every
     side so that the spline's end conditions fall outside the box, with cells of at most
-    ``spacing`` (m; one length or one per axis) along each axis; calling it on (N, 3) points gives the (N, C) values of
-    the cubic B-spline interpolant (scipy.ndimage, coefficients computed once). Outside the
-    extended grid the nearest edge value is used.
+    ``spacing`` (m; one length or one per axis); calling it on (N, 3) points gives the (N, C)
+    values of the cubic B-spline interpolant (scipy.ndimage, coefficients computed once).
+    Outside the extended grid the nearest edge value is used. With ``radius``, a node farther
+    than that from the z axis takes the value at its radial projection onto that cylinder
+    (for a field whose sources sit just outside the region of use).
 
     What for: a ray bundle calls its field 6 times per step on 7 points per ray; a magnet
     model of many source elements (a segmented multipole) costs about 20 µs per point and
     a few ms per call, the spline a few µs per call and point. The interpolation error of a
-    cubic spline falls as (spacing / L)^4 with L the field's scale length (about 1e-4 of |B|
-    for the bundled examples at the default spacings of :mod:`rfcheck.rules.rays`, checked
-    against the field engine and a loop's closed-form axis field in the tests).
+    cubic spline falls as (spacing / L)^4 with L the field's scale length: checked against a
+    dipole's closed-form field in the tests; for the grid of :mod:`rfcheck.rules.rays` on the
+    minimum-B example see DEVELOPERS.md "Rays" (1e-4 near the axis, a few % at the wall near
+    the ends of the segmented hexapole).
     """
 
     def __init__(self, values: Callable[[np.ndarray], np.ndarray], low, high,
