@@ -150,3 +150,29 @@ def test_the_oblique_beam_example_is_judged_by_its_rays():
     found = {f.rule: f for f in r.findings if f.rule in RAYS}
     assert all(f.status.value != "not-applicable" for f in found.values())
     assert "49 rays" in found["rays.reaches-resonance"].message
+
+
+def test_the_oblique_example_runs_under_warnings_as_errors_and_draws_its_rays():
+    # the same filter as tests/physics/test_edges.py applies to the other examples; the ray
+    # figures exist for the traced feed only, and their captions name what is drawn
+    import warnings
+
+    from rfcheck.findings import Status
+    from rfcheck.report.figure_rays import ray_figures
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        r = run(load_spec(EXAMPLES / "oblique-beam-reactor.toml"), load_policy(None))
+        figs = ray_figures(r)
+    assert not [f.message for f in r.findings if f.status is Status.ERROR]
+    assert [f["id"] for f in figs] == ["rays-map-klystron", "rays-deposition-klystron"]
+    assert "the 49 rays of the R branch" in figs[0]["caption"]
+    assert "518 mT" in figs[0]["caption"]  # B_ECR at 14.5 GHz: 2π f m_e / e = 0.5179 T
+    assert "one line per envelope corner" in figs[1]["caption"]
+    assert figs[0]["svg"].startswith("<svg")
+
+
+def test_on_axis_examples_draw_no_ray_figures(bench_run):
+    from rfcheck.report.figure_rays import ray_figures
+
+    assert ray_figures(bench_run) == []
