@@ -128,11 +128,14 @@ def ray_grid(ctx) -> GridField:
         spacing = np.array([r / GRID_XY, r / GRID_XY, ch.length / GRID_Z])
         fm = ctx.field_model
         # nodes beyond the wall take their radial projection (a magnet may sit just outside);
-        # a measured map may end at the wall
+        # a measured map may end at the wall and at the chamber ends
         measured = any(isinstance(s, FieldMap) for s in ctx.model.magnet.sources)
-        reach = r if measured else r * (1.0 + 0.5 / GRID_XY)
+        reach = r * (1.0 - 1e-9) if measured else r * (1.0 + 0.5 / GRID_XY)
 
         def values(p):
+            if measured:  # a measured map covers the chamber only: clamp the end pads
+                p = p.copy()
+                p[:, 2] = np.clip(p[:, 2], ch.z_start, ch.z_end)
             return np.concatenate(node_fields(fm, p), axis=1)
 
         ctx._cache["ray-grid"] = GridField(values, [-r, -r, ch.z_start], [r, r, ch.z_end],

@@ -176,3 +176,21 @@ def test_on_axis_examples_draw_no_ray_figures(bench_run):
     from rfcheck.report.figure_rays import ray_figures
 
     assert ray_figures(bench_run) == []
+
+
+def test_a_traced_launch_through_a_measured_field_map_is_evaluated(write_spec, demo_text):
+    # a measured (B_r, B_z) map covering just the chamber (r 0–75 mm, z 0–300 mm) of a
+    # uniform 0.2 T field: the study samples it without leaving the map, and the straight
+    # ray of the near-vacuum case meets the side wall at z = (R − x0)/tan 20° as above
+    csv = "r [mm], z [mm], Br [T], Bz [T]\n" + "".join(
+        f"{r}, {z}, 0, 0.2\n" for r in (0, 25, 50, 75) for z in (0, 100, 200, 300))
+    path = write_spec(csv, "map.csv")
+    launch = ('launch = { z = "0 mm", direction = "+z", mode = "R", angle_to_field = "0 deg", '
+              'polarisation = "circular-right", x = "20 mm", tilt = "20 deg" }')
+    text = _vacuum_tilted(demo_text, launch).replace(
+        'uniform = { b = "0.2 T" }', f'field_map = {{ file = "{path.name}" }}')
+    r = run(load_spec(write_spec(text)), load_policy(None))
+    found = {f.rule: f for f in r.findings if f.rule in RAYS}
+    assert found["rays.wall-load"].status.value == "pass", found["rays.wall-load"].message
+    (ray,) = ray_study(r.context, r.model.feeds[0]).corners[0].rays
+    assert ray.end[2] == pytest.approx((0.075 - 0.020) / math.tan(math.radians(20.0)), rel=1e-6)
