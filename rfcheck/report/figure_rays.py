@@ -1,6 +1,6 @@
 """Report figures of the ray study (rfcheck.rules.rays): the rays over the |B| map in the r–z
-plane of the launch, with the resonance and cutoff surfaces and the deposition points; the
-deposition profile along z. No verdicts here: the figures draw the study the rays.* rules
+plane of the launch, with the resonance and cutoff surfaces and the deposition points; a
+cross-section at the layer; the deposition profile along z. No verdicts here: the figures draw the study the rays.* rules
 judged (cached on the run's Context)."""
 
 from __future__ import annotations
@@ -91,6 +91,54 @@ def _map_figure(run, study) -> dict:
                         "cross the resonance curve of the plane without meeting it.")}
 
 
+def _section_figure(run, study) -> dict | None:
+    """|B| across the chamber (x–y) at the z where the densest corner's rays meet the layer
+    (power-weighted mean), with the layer curve and the layer points of every corner."""
+    from rfcheck.rules.rays import _field
+
+    ch, feed = run.model.chamber, study.feed
+    corner = max(study.corners, key=lambda k: k.density)
+    hits = [(r.end, w * float(r.power[-1])) for r, e, w in
+            zip(corner.rays, corner.ends, corner.weights) if e == "layer"]
+    if not hits:
+        return None
+    z0 = float(sum(p[2] * w for p, w in hits) / sum(w for _, w in hits))
+    u = np.linspace(-ch.radius, ch.radius, MAP_R)
+    xx, yy = np.meshgrid(u, u, indexing="ij")
+    pts = np.stack([xx, yy, np.full(xx.shape, z0)], axis=-1).reshape(-1, 3)
+    bmag = np.linalg.norm(_field(study.grid, corner.scale)(pts), axis=1).reshape(xx.shape)
+    bmag = np.where(np.hypot(xx, yy) <= ch.radius, bmag, np.nan)
+    plt = _mpl()
+    fig, ax = plt.subplots(figsize=(4.6, 3.8))
+    cs = ax.contourf(u * 1e3, u * 1e3, bmag.T * 1e3, levels=20, cmap="Greys", alpha=0.55)
+    fig.colorbar(cs, ax=ax, label="|B| (mT)", shrink=0.85)
+    if np.nanmin(bmag) < study.b_res < np.nanmax(bmag):
+        ax.contour(u * 1e3, u * 1e3, bmag.T, levels=[study.b_res], colors="#c44e52",
+                   linewidths=1.4)
+    for i, c in enumerate(study.corners):
+        e = np.array([r.end for r, end in zip(c.rays, c.ends) if end == "layer"]).reshape(-1, 3)
+        if e.size:
+            ax.plot(e[:, 0] * 1e3, e[:, 1] * 1e3, "o", ms=2.2,
+                    color=_CORNER_COLOURS[i % len(_CORNER_COLOURS)], label=_corner_text(c))
+    t = np.linspace(0, 2 * math.pi, 181)
+    ax.plot(ch.radius * 1e3 * np.cos(t), ch.radius * 1e3 * np.sin(t), color="0.3", lw=1.0)
+    ax.set_aspect("equal")
+    ax.set_xlabel("x (mm)")
+    ax.set_ylabel("y (mm)")
+    ax.legend(loc="upper right", fontsize=6.5, framealpha=0.85)
+    ax.grid(False)
+    return {"id": f"rays-section-{feed.id}",
+            "title": f"Cross-section at the layer, feed {_short(feed.id)}",
+            "svg": _svg(fig, f"rays-section-{feed.id}"),
+            "caption": (f"Feed {feed.id}: |B| across the chamber (grey, from the ray study's "
+                        f"spline grid) in the plane z = {z0 * 1e3:.4g} mm, where the rays of "
+                        f"the densest corner ({_corner_text(corner)}) meet the layer (their "
+                        "power-weighted mean z); solid red: the layer |B| = "
+                        f"{study.b_res * 1e3:.4g} mT in that plane; dots: the (x, y) of every "
+                        "ray's end on the layer, one colour per envelope corner, each at its "
+                        "own z; grey circle: the chamber wall.")}
+
+
 def _profile_figure(run, study) -> dict:
     ch = run.model.chamber
     feed = study.feed
@@ -124,7 +172,7 @@ def _profile_figure(run, study) -> dict:
 
 
 def ray_figures(run) -> list[dict]:
-    """The two ray figures of every traced feed (none for on-axis launches)."""
+    """The ray figures of every traced feed (none for on-axis launches)."""
     ctx, model = run.context, run.model
     if ctx is None:
         return []
@@ -139,5 +187,8 @@ def ray_figures(run) -> list[dict]:
         except Exception:  # the rules report a ray study that cannot be made
             continue
         out.append(_map_figure(run, study))
+        section = _section_figure(run, study)
+        if section:
+            out.append(section)
         out.append(_profile_figure(run, study))
     return out

@@ -153,8 +153,8 @@ def test_the_oblique_beam_example_is_judged_by_its_rays():
 
 
 def test_the_oblique_example_runs_under_warnings_as_errors_and_draws_its_rays():
-    # the same filter as tests/physics/test_edges.py applies to the other examples; the ray
-    # figures exist for the traced feed only, and their captions name what is drawn
+    # the same filter as tests/physics/test_edges.py applies to the other examples; the three
+    # ray figures exist for the traced feed only, and their captions name what is drawn
     import warnings
 
     from rfcheck.findings import Status
@@ -165,10 +165,12 @@ def test_the_oblique_example_runs_under_warnings_as_errors_and_draws_its_rays():
         r = run(load_spec(EXAMPLES / "oblique-beam-reactor.toml"), load_policy(None))
         figs = ray_figures(r)
     assert not [f.message for f in r.findings if f.status is Status.ERROR]
-    assert [f["id"] for f in figs] == ["rays-map-klystron", "rays-deposition-klystron"]
+    assert [f["id"] for f in figs] == ["rays-map-klystron", "rays-section-klystron",
+                                       "rays-deposition-klystron"]
     assert "the 49 rays of the R branch" in figs[0]["caption"]
     assert "518 mT" in figs[0]["caption"]  # B_ECR at 14.5 GHz: 2π f m_e / e = 0.5179 T
-    assert "one line per envelope corner" in figs[1]["caption"]
+    assert "one colour per envelope corner" in figs[1]["caption"]
+    assert "one line per envelope corner" in figs[2]["caption"]
     assert figs[0]["svg"].startswith("<svg")
 
 
