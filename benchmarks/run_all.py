@@ -20,7 +20,8 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 from harness import print_table  # noqa: E402
 
-BENCHMARKS = ("bench_cli", "bench_scaling", "bench_magnet", "bench_coldplasma", "bench_window")
+BENCHMARKS = ("bench_cli", "bench_scaling", "bench_magnet", "bench_coldplasma", "bench_window",
+              "bench_rays")
 
 
 def main() -> int:

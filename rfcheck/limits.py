@@ -70,6 +70,9 @@ KEY_RANGES: dict[str, Range] = {
     "max_temperature_rise": Range(0.0, 2000.0, "up to 2000 K",
                                   "a rise beyond what any window material survives is a unit slip "
                                   "(diamond graphitises near 1000 K in air)"),
+    "launch_tilt": Range(0.0, 1.5707963267948966 * (1 - 1e-9), "0 to below 90 deg",
+                         "the tilt of a launch from its direction along the axis; at 90 deg "
+                         "the wave no longer advances along the launch direction"),
 }
 
 #: most entries of a list in a spec, with the reason (the key is the list's key)

@@ -232,6 +232,26 @@ Polarisation = Literal["linear", "circular-right", "circular-left", "as-mode"]
 
 
 @dataclass(frozen=True)
+class LaunchBeam:
+    """A Gaussian (TEM00) beam: 1/e² intensity radius `waist` (m) at the waist, which lies
+    `waist_distance` (m) ahead of the launcher along the launch direction (negative: behind)."""
+
+    waist: float
+    waist_distance: float = 0.0
+
+
+@dataclass(frozen=True)
+class LaunchTarget:
+    """The intended deposition region of a launch: z_start..z_end (m) within `radius` of the
+    axis (None: the chamber radius); `label` says how the spec gave it."""
+
+    z_start: float
+    z_end: float
+    radius: float | None = None
+    label: str = ""
+
+
+@dataclass(frozen=True)
 class Launch:
     """Where and how a feed launches its wave.
 
@@ -249,6 +269,36 @@ class Launch:
     angle_to_field: float  # rad, angle between k and B at the launcher, 0..π/2
     polarisation: Polarisation | None = None
     e_angle_to_field: float | None = None  # rad, linear polarisation only
+    x: float = 0.0  # m, launcher position off the axis
+    y: float = 0.0  # m
+    tilt: float = 0.0  # rad, angle of k from the launch direction (±z), 0..<π/2
+    tilt_azimuth: float = 0.0  # rad, plane of the tilt, from +x towards +y
+    beam: LaunchBeam | None = None  # a Gaussian beam; None: a single ray
+    target: LaunchTarget | None = None  # the intended deposition region
+
+    @property
+    def off_axis(self) -> float:
+        """Distance of the launcher from the axis, m."""
+        return float(np.hypot(self.x, self.y))
+
+    @property
+    def traced(self) -> bool:
+        """Whether the launch is off axis, oblique or a beam: the rays judge it (the 1-D axis
+        path covers the others)."""
+        return self.off_axis > 0 or self.tilt > 0 or self.beam is not None
+
+    @property
+    def origin(self) -> np.ndarray:
+        """Launcher position (x, y, z), m."""
+        return np.array([self.x, self.y, self.z], dtype=float)
+
+    @property
+    def wave_direction(self) -> np.ndarray:
+        """Unit vector of the launched wave vector: the launch direction (±z) tilted by `tilt`
+        in the plane at `tilt_azimuth` from +x."""
+        st = float(np.sin(self.tilt))
+        return np.array([st * np.cos(self.tilt_azimuth), st * np.sin(self.tilt_azimuth),
+                         self.direction * float(np.cos(self.tilt))])
 
 
 Absorption = Literal["ecr", "ecr-harmonic-2", "uhr", "icr", "lh", "helicon", "inductive"]

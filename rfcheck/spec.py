@@ -304,6 +304,31 @@ class MagnetSpec(_Strict):
     field_map: MeasuredSpec | None = None
 
 
+class LaunchBeamSpec(_Strict):
+    """A Gaussian (TEM00) beam sent by the launcher: its 1/e² intensity radius at the waist and
+    where the waist lies along the launch direction from the launcher (negative: behind it)."""
+
+    waist: PosLength = Field(description="1/e² intensity radius at the waist, e.g. \"8 mm\"")
+    waist_distance: Length = Field(0.0, description="distance of the waist ahead of the "
+                                                    "launcher along the launch direction")
+
+
+LaunchTilt = _quantity("angle", non_negative=True, key="launch_tilt")
+
+
+class LaunchTargetSpec(_Strict):
+    """Where the launch is meant to deposit its power: a slice of the chamber (start, end)
+    or a landmark with a half width, optionally within a radius of the axis."""
+
+    landmark: Id | None = Field(None, description="a chamber landmark id (with half_width)")
+    half_width: PosLength | None = Field(None, description="half the axial width of the "
+                                                           "region round the landmark")
+    start: Length | None = Field(None, description="axial start of the region (with end)")
+    end: Length | None = Field(None, description="axial end of the region (with start)")
+    radius: PosLength | None = Field(None, description="largest distance from the axis "
+                                                       "(not declared: the chamber radius)")
+
+
 class LaunchSpec(_Strict):
     z: Length
     direction: Literal["+z", "-z"] = "+z"
@@ -317,6 +342,22 @@ class LaunchSpec(_Strict):
     e_angle_to_field: Angle | None = Field(
         None, description="linear polarisation: angle of E from the projection of B on the "
                           "wavefront (0 deg across B: the O mode); not declared: the worst case")
+    x: Length | None = Field(None, description="launcher position off the axis, x (not "
+                                               "declared: on the axis)")
+    y: Length | None = Field(None, description="launcher position off the axis, y (not "
+                                               "declared: on the axis)")
+    tilt: LaunchTilt | None = Field(
+        None, description="angle of the launched wave vector from the launch direction (±z), "
+                          "0 to below 90 deg (not declared: along the axis)")
+    tilt_azimuth: Angle | None = Field(
+        None, description="plane of the tilt: angle from +x towards +y, 0–360 deg (not "
+                          "declared: 0, the tilt towards +x)")
+    beam: LaunchBeamSpec | None = Field(
+        None, description='a Gaussian beam: { waist = "8 mm", waist_distance = "40 mm" } '
+                          '(not declared: a single ray along the launch direction)')
+    target: LaunchTargetSpec | None = Field(
+        None, description='the intended deposition region: { start = "120 mm", end = '
+                          '"180 mm" } or { landmark = "resonance-zone", half_width = "10 mm" }')
 
 
 class ColdCavitySpec(_Strict):
@@ -890,6 +931,52 @@ class _CrossCheck:
                 self.fail(loc + ("e_angle_to_field",),
                           f"{math.degrees(la.e_angle_to_field):.4g} deg is outside 0–90 deg "
                           "(the angle between E and the projection of B on the wavefront)")
+        self._launch_rays(f, la, loc)
+
+    def _launch_rays(self, f: FeedSpec, la: LaunchSpec, loc: tuple) -> None:
+        """The off-axis, oblique and beam keys of a launch: inside the chamber's radius."""
+        from rfcheck.physics.constants import C as C_LIGHT
+
+        radius = self.spec.chamber.radius
+        off = math.hypot(la.x or 0.0, la.y or 0.0)
+        if off >= radius:
+            key = "x" if la.x is not None and abs(la.x) >= abs(la.y or 0.0) else "y"
+            self.fail(loc + (key,),
+                      f"the launcher lies {off * 1e3:.4g} mm off the axis, at or beyond the "
+                      f"chamber radius ({radius * 1e3:.4g} mm); expected less than the radius")
+        if la.tilt_azimuth is not None and la.tilt is None:
+            self.fail(loc + ("tilt_azimuth",), "tilt_azimuth names the plane of a tilt; give "
+                                               "tilt too (e.g. tilt = \"10 deg\")")
+        t = la.target
+        if t is not None:
+            landmarks = {lm.id for lm in self.spec.chamber.landmarks}
+            if (t.landmark is None) == (t.start is None and t.end is None):
+                self.fail(loc + ("target",), "give either a landmark (with half_width) or "
+                                             "start and end, not both and not neither")
+            elif t.landmark is not None:
+                if t.landmark not in landmarks:
+                    self.fail(loc + ("target", "landmark"),
+                              f"no chamber landmark '{t.landmark}'; expected one of "
+                              f"{', '.join(sorted(landmarks)) or '(none declared)'}")
+                if t.half_width is None:
+                    self.fail(loc + ("target", "half_width"),
+                              "a landmark target needs half_width (e.g. \"10 mm\")")
+            elif t.start is None or t.end is None:
+                self.fail(loc + ("target", "end" if t.end is None else "start"),
+                          "a target slice needs both start and end")
+            elif not t.end > t.start:
+                self.fail(loc + ("target", "end"), "end must lie beyond start")
+        if la.beam is not None and la.beam.waist < C_LIGHT / (math.pi * f.frequency):
+            self.fail(loc + ("beam", "waist"),
+                      f"a waist of {la.beam.waist * 1e3:.4g} mm is below λ/π = "
+                      f"{C_LIGHT / (math.pi * f.frequency) * 1e3:.4g} mm at "
+                      f"{f.frequency / 1e9:.4g} GHz: such a beam diverges by more than "
+                      "1 rad (λ/(π w0)) and is no paraxial beam; expected at least λ/π")
+        elif la.beam is not None and off + la.beam.waist >= radius:
+            self.fail(loc + ("beam", "waist"),
+                      f"the beam (waist {la.beam.waist * 1e3:.4g} mm, {off * 1e3:.4g} mm off "
+                      f"the axis) does not fit inside the chamber radius "
+                      f"({radius * 1e3:.4g} mm); expected off-axis distance + waist below it")
 
     def _window_place(self, w: WindowSpec, f: FeedSpec, i: int) -> None:
         """A window sits in its feed's line: at or behind the launcher, never in the plasma
@@ -1041,7 +1128,11 @@ class _CrossCheck:
                    f.max_reflected_power, f.line,
                    m.Launch(f.launch.z, 1 if f.launch.direction == "+z" else -1, f.launch.mode,
                             min(f.launch.angle_to_field, math.pi / 2), f.launch.polarisation,
-                            f.launch.e_angle_to_field),
+                            f.launch.e_angle_to_field, f.launch.x or 0.0, f.launch.y or 0.0,
+                            f.launch.tilt or 0.0, f.launch.tilt_azimuth or 0.0,
+                            (m.LaunchBeam(f.launch.beam.waist, f.launch.beam.waist_distance)
+                             if f.launch.beam else None),
+                            _launch_target(f.launch.target, s.chamber)),
                    f.absorption, _cold_gamma(f.cold_cavity), f.ignition_time,
                    (m.ShortRating(f.max_reflected_power_short.power,
                                   f.max_reflected_power_short.duration)
@@ -1068,6 +1159,20 @@ class _CrossCheck:
             review=m.Review(s.review.prepared_by, s.review.checked_by, s.review.approved_by,
                             s.review.notes),
         )
+
+
+def _launch_target(t: LaunchTargetSpec | None, chamber):
+    """The model's LaunchTarget of a declared target (a landmark resolved to its slice)."""
+    from rfcheck import model as m
+
+    if t is None:
+        return None
+    if t.landmark is not None:
+        z = next(lm.z for lm in chamber.landmarks if lm.id == t.landmark)
+        return m.LaunchTarget(z - t.half_width, z + t.half_width, t.radius,
+                              f"landmark {t.landmark} ± {t.half_width * 1e3:.4g} mm")
+    return m.LaunchTarget(t.start, t.end, t.radius,
+                          f"z = {t.start * 1e3:.4g}–{t.end * 1e3:.4g} mm")
 
 
 def _pressure_span(p) -> m.Span:

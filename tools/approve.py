@@ -30,6 +30,7 @@ CASES = (
     ("ech-launcher-140ghz.toml", None),
     ("dual-frequency-min-b.toml", None),
     ("helicon-source.toml", None),
+    ("oblique-beam-reactor.toml", None),
 )
 
 

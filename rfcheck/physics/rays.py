@@ -61,7 +61,8 @@ from rfcheck.physics.coldplasma import n2_branch
 from rfcheck.physics.constants import C as C_LIGHT
 from rfcheck.physics.domain import check_index, guard_public
 
-__all__ = ["Ray", "Beam", "trace_ray", "trace_rays", "trace_beam", "beam_samples", "STOPS"]
+__all__ = ["Ray", "Beam", "GridField", "trace_ray", "trace_rays", "trace_beam", "beam_samples",
+           "STOPS"]
 
 #: every reason a ray can end (see the module docstring)
 STOPS = ("max_length", "wall", "resonance", "absorbed", "returned", "evanescent_start",
@@ -135,6 +136,12 @@ def _branch(f: float, key: str, ions):
 
 
 def _diagnostics(n2, medium, path, nvecs, omega_c: float, h: float) -> tuple[float, np.ndarray]:
+    """(residual, go_parameter) along one path (see :func:`_diagnostics_rows`)."""
+    res, go = _diagnostics_rows(n2, medium, path, nvecs, omega_c, h)
+    return float(res.max()), go
+
+
+def _diagnostics_rows(n2, medium, path, nvecs, omega_c: float, h: float):
     """(residual, go_parameter) along a path: the largest |N·N − n²| / max(1, N·N) and
     1/(k L) with L = n²/|∇n²| (one medium call on 7 points per path point)."""
     pts = (path[:, None, :] + h * _OFFSETS[None, :, :]).reshape(-1, 3)
@@ -142,12 +149,79 @@ def _diagnostics(n2, medium, path, nvecs, omega_c: float, h: float) -> tuple[flo
     rows = np.repeat(nvecs, 7, axis=0)
     v = np.real(np.asarray(n2(b, n_e, rows))).reshape(-1, 7)
     nn = np.einsum("ij,ij->i", nvecs, nvecs)
-    residual = float(np.max(np.abs(nn - v[:, 0]) / np.maximum(1.0, nn)))
+    residual = np.abs(nn - v[:, 0]) / np.maximum(1.0, nn)
     grad = np.linalg.norm((v[:, 1:4] - v[:, 4:7]) / (2.0 * h), axis=1)
     k = omega_c * np.sqrt(np.maximum(v[:, 0], 1e-300))
     with np.errstate(divide="ignore", invalid="ignore"):
         go = np.where(grad > 0, grad / (k * np.abs(v[:, 0])), 0.0)
     return residual, np.where(np.isfinite(go), go, np.inf)
+
+
+class GridField:
+    """A vector function sampled once on a regular 3-D grid and read back by cubic splines.
+
+    ``GridField(values, low, high, spacing)`` evaluates ``values(points) -> (N, C)`` once on
+    the grid of the box ``low``–``high`` (m, 3-vectors), extended by ``pad`` cells on every
+    side so that the spline's end conditions fall outside the box, with cells of at most
+    ``spacing`` (m; one length or one per axis); calling it on (N, 3) points gives the (N, C)
+    values of the cubic B-spline interpolant (scipy.ndimage, coefficients computed once).
+    Outside the extended grid the nearest edge value is used. With ``radius``, a node farther
+    than that from the z axis takes the value at its radial projection onto that cylinder
+    (for a field whose sources sit just outside the region of use).
+
+    What for: a ray bundle calls its field 6 times per step on 7 points per ray; a magnet
+    model of many source elements (a segmented multipole) costs about 20 µs per point and
+    a few ms per call, the spline a few µs per call and point. The interpolation error of a
+    cubic spline falls as (spacing / L)^4 with L the field's scale length: checked against a
+    dipole's closed-form field in the tests; for the grid of :mod:`rfcheck.rules.rays` on the
+    minimum-B example see DEVELOPERS.md "Rays" (1e-4 near the axis, a few % at the wall near
+    the ends of the segmented hexapole).
+    """
+
+    def __init__(self, values: Callable[[np.ndarray], np.ndarray], low, high,
+                 spacing: float, *, pad: int = 3, max_points: int = 400_000,
+                 radius: float | None = None):
+        from scipy.ndimage import spline_filter
+
+        lo = np.asarray(low, dtype=float).reshape(3)
+        hi = np.asarray(high, dtype=float).reshape(3)
+        h = np.broadcast_to(np.asarray(spacing, dtype=float), (3,))
+        if not (np.all(np.isfinite(lo)) and np.all(np.isfinite(hi)) and np.all(hi > lo)):
+            raise ValueError("the grid box needs finite corners with high > low")
+        if not (np.all(np.isfinite(h)) and np.all(h > 0)):
+            raise ValueError("spacing must be a positive finite length (m), or three")
+        check_index("pad", pad, 2, 20)
+        cells = np.maximum(np.ceil((hi - lo) / h), 1).astype(int)
+        self.step = (hi - lo) / cells
+        self.low = lo - pad * self.step
+        shape = tuple(int(c) + 1 + 2 * pad for c in cells)
+        if math.prod(shape) > max_points:
+            raise ValueError(f"the grid would hold {math.prod(shape)} points, above "
+                             f"max_points = {max_points}: give a coarser spacing")
+        self.shape = shape
+        axes = [self.low[i] + self.step[i] * np.arange(shape[i]) for i in range(3)]
+        pts = np.stack(np.meshgrid(*axes, indexing="ij"), axis=-1).reshape(-1, 3)
+        if radius is not None:
+            # sample only within `radius` of the z axis: a node beyond it takes the value at
+            # its radial projection onto that cylinder (a field source may sit just outside)
+            rho = np.hypot(pts[:, 0], pts[:, 1])
+            out = rho > radius
+            pts[out, :2] *= (radius / rho[out])[:, None]
+        vals = np.asarray(values(pts), dtype=float).reshape(len(pts), -1)
+        if not np.all(np.isfinite(vals)):
+            raise ValueError("the sampled function is not finite everywhere on the grid")
+        self.components = vals.shape[1]
+        self.points = len(pts)
+        self._coef = [spline_filter(vals[:, c].reshape(shape), order=3, mode="nearest")
+                      for c in range(self.components)]
+
+    def __call__(self, points) -> np.ndarray:
+        from scipy.ndimage import map_coordinates
+
+        p = np.asarray(points, dtype=float).reshape(-1, 3)
+        idx = ((p - self.low) / self.step).T
+        return np.stack([map_coordinates(c, idx, order=3, mode="nearest", prefilter=False)
+                         for c in self._coef], axis=-1)
 
 
 def trace_ray(frequency: float, start, direction, mode: str,
@@ -438,49 +512,32 @@ def trace_rays(frequency: float, starts, directions, mode: str, b_field, density
     side = (np.sign(np.linalg.norm(b_s, axis=1) - cyclotron_field)
             if cyclotron_field is not None else None)
 
-    def stopped(y, origin=r0, toward=d0, bmag=None, side_=None):
+    def stopped(y, idx, bmag=None):
+        """(stop names, {name: g}) of rows y of rays idx: a stop is met where its g ≥ 0."""
         r, nv, lnp, s_ = y[:, :3], y[:, 3:6], y[:, 6], y[:, 7]
         out = np.full(len(y), "", dtype=object)
-        # each condition carries a small slack: a frozen ray's stages straddle its stop, so
-        # without it the accepted state would creep towards the stop without ever meeting it
-        tol = 1e-9 * max_length
-        conditions = [("max_length", s_ - max_length + tol),
-                      ("resonance", np.linalg.norm(nv, axis=1) - n_max + 1e-9 * n_max),
-                      ("absorbed", log_floor - lnp + 1e-9),
-                      ("returned", -((r - origin) @ toward if origin.ndim == 1 else
-                                     np.einsum("ij,ij->i", r - origin, toward))
-                       - 1e-12 * max_length)]
+        conditions = {"max_length": s_ - max_length,
+                      "resonance": np.linalg.norm(nv, axis=1) - n_max,
+                      "absorbed": log_floor - lnp,
+                      "returned": -np.einsum("ij,ij->i", r - r0[idx], d0[idx])
+                      - 1e-12 * max_length}
         if inside is not None:
-            conditions.append(("wall", 1e-12 * max_length
-                               - np.asarray(inside(r), dtype=float).reshape(-1)))
+            conditions["wall"] = 1e-12 * max_length - np.asarray(inside(r),
+                                                                  dtype=float).reshape(-1)
         if cyclotron_field is not None:
             if bmag is None:
                 bmag = np.linalg.norm(medium(r)[0], axis=1)
-            sgn = side if side_ is None else side_
+            sgn = side[idx]
             edge = cyclotron_field * (1.0 + sgn * cyclotron_band)
-            conditions.append(("cyclotron_layer", sgn * (edge - bmag) + 1e-9 * cyclotron_field))
-        for name, g in conditions:
+            conditions["cyclotron_layer"] = sgn * (edge - bmag)
+        for name, g in conditions.items():
             out = np.where((out == "") & (g >= 0), name, out)
         return out, conditions
 
-    class _Budget(Exception):
-        pass
-
-    seen: list[tuple[float, np.ndarray]] = []
-
-    def rhs(tau, flat):
-        evaluations[0] += 1
-        if evaluations[0] > max_evaluations:
-            raise _Budget
-        if len(seen) < 4096 or evaluations[0] % 16 == 0:
-            seen.append((tau, flat.copy()))
-        y = flat.reshape(k_rays, 8)
+    def rhs(y):
+        """(dy/dτ, |B| at r) for rows y (A, 8): 7 medium points per ray, one call for all."""
         dy = np.zeros_like(y)
-        stop_now, _ = stopped(y)
-        act = np.nonzero(alive & (stop_now == ""))[0]
-        if act.size == 0:
-            return dy.reshape(-1)
-        r, nv = y[act, :3], y[act, 3:6]
+        r, nv = y[:, :3], y[:, 3:6]
         pts = (r[:, None, :] + h_position * _OFFSETS[None, :, :]).reshape(-1, 3)
         b, n_e = medium(pts)
         b, n_e = b.reshape(-1, 7, 3), n_e.reshape(-1, 7)
@@ -498,72 +555,186 @@ def trace_rays(frequency: float, starts, directions, mode: str, b_field, density
         speed = np.linalg.norm(dh_dn, axis=1)
         good = np.isfinite(speed) & np.all(np.isfinite(dh_dr), axis=1)
         dh_dn[~good], dh_dr[~good], speed[~good] = 0.0, 0.0, 0.0
-        dy[act, :3], dy[act, 3:6], dy[act, 7] = dh_dn, -dh_dr, speed
+        dy[:, :3], dy[:, 3:6], dy[:, 7] = dh_dn, -dh_dr, speed
         if nu > 0:
             n2c = np.asarray(n2(b[:, 0], n_e[:, 0], nv, nu))
             k_i = omega_c * np.abs(np.sqrt(n2c.astype(complex)).imag)
             nhat = nv / np.maximum(np.linalg.norm(nv, axis=1), 1e-300)[:, None]
-            dy[act, 6] = -2.0 * k_i * np.abs(np.einsum("ij,ij->i", nhat, dh_dn))
-        return dy.reshape(-1)
+            dy[:, 6] = -2.0 * k_i * np.abs(np.einsum("ij,ij->i", nhat, dh_dn))
+        return dy, np.linalg.norm(b[:, 0], axis=1), good
 
     y0 = np.concatenate([r0, nvec0, np.zeros((k_rays, 2))], axis=1)
     step = float(max_step or max_length / 50.0) / (2.0 * max(1.0, float(np.sqrt(n2_s.max()))
                                                            if np.any(alive) else 1.0))
-
-    def all_done(tau, flat):
-        y = flat.reshape(k_rays, 8)
-        stop_now, _ = stopped(y)
-        return 0.5 - float(np.count_nonzero(alive & (stop_now == "")))
-
-    all_done.terminal = True
-    if np.any(alive):
-        try:
-            sol = solve_ivp(rhs, (0.0, 1e6 * float(max_length)), y0.reshape(-1),
-                            method="DOP853", rtol=rtol, atol=rtol * 1e-3, events=[all_done],
-                            max_step=step)
-            history = sol.y.T.reshape(-1, k_rays, 8)
-        except _Budget:
-            # the budget ran out: keep the states traced so far (rays not ended: step_failure)
-            seen.sort(key=lambda item: item[0])
-            history = np.stack([y0.reshape(-1)] + [y for _, y in seen]).reshape(-1, k_rays, 8)
-    else:
-        history = y0[None, :, :]
+    history, evaluations[0] = _bundle_steps(rhs, stopped, y0, alive, step, rtol,
+                                            max_evaluations)
+    # diagnostics of every path in one medium call
+    live = [i for i in range(k_rays) if alive[i]]
+    diag = {}
+    if live:
+        paths = np.concatenate([history[i][0] for i in live])
+        res_all, go_all = _diagnostics_rows(n2, medium, paths[:, :3], paths[:, 3:6], omega_c,
+                                            h_position)
+        at = 0
+        for i in live:
+            m_i = len(history[i][0])
+            diag[i] = (float(res_all[at:at + m_i].max()), go_all[at:at + m_i])
+            at += m_i
     out = []
     for i in range(k_rays):
         if not alive[i]:
             out.append(Ray(np.array([0.0]), r0[i:i + 1].copy(), np.zeros((1, 3)), np.array([1.0]),
                            np.array([math.inf]), "evanescent_start", 0.0, key, f))
             continue
-        ys = history[:, i, :]
-        stops, conds = stopped(ys, r0[i], d0[i], None, None if side is None else side[i])
-        hit = np.nonzero(stops != "")[0]
-        if hit.size:
-            j = int(hit[0])
-            name = str(stops[j])
-            g = dict(conds)[name]
-            if j > 0 and g[j] != g[j - 1]:  # interpolate the end back onto the stop
-                t = float(g[j - 1] / (g[j - 1] - g[j]))
-                ys = np.vstack([ys[:j], ys[j - 1] + t * (ys[j] - ys[j - 1])])
-            else:
-                ys = ys[: j + 1]
-        else:
-            # unique rows only: a ray frozen by the budget repeats its state
-            keep = np.concatenate([[True], np.any(np.diff(ys, axis=0) != 0, axis=1)])
-            ys = ys[keep]
-            name = "step_failure"
-        path, nv = ys[:, :3], ys[:, 3:6]
-        residual, go = _diagnostics(n2, medium, path, nv, omega_c, h_position)
-        out.append(Ray(ys[:, 7].copy(), path.copy(), nv.copy(), np.exp(ys[:, 6]), go, name,
-                       residual, key, f))
+        ys, name = history[i]
+        residual, go = diag[i]
+        out.append(Ray(ys[:, 7].copy(), ys[:, :3].copy(), ys[:, 3:6].copy(), np.exp(ys[:, 6]),
+                       go, name, residual, key, f))
     return tuple(out)
 
 
+def _bundle_steps(rhs, stopped, y0: np.ndarray, alive: np.ndarray, h_max: float, rtol: float,
+                  budget: int):
+    """Integrate every live ray of a bundle with its own step (Dormand–Prince 5(4), the
+    tableau of scipy's RK45, vectorised over the rays): each stage is one `rhs` call on the
+    rays still running, so a ray that has ended costs nothing and a stiff ray near a layer
+    does not shorten the steps of the others. A ray ends at the first accepted step where a
+    stop's g turns ≥ 0; the end is placed on g = 0 by regula falsi on the step's 4th-order
+    dense output (4 rounds). Work: at most `budget` calls of `rhs` (rays still running then
+    end with "step_failure"). Returns ({ray: (states (M, 8), stop)}, calls of rhs)."""
+    from scipy.integrate import RK45
+
+    a_tab, b_tab, c_tab, e_tab, p_tab = RK45.A, RK45.B, RK45.C, RK45.E, RK45.P
+    k_rays = len(y0)
+    atol = rtol * 1e-3
+    rows: dict[int, list[np.ndarray]] = {i: [y0[i].copy()] for i in range(k_rays) if alive[i]}
+    ends: dict[int, str] = {}
+    act = np.nonzero(alive)[0]
+    y = y0[act].copy()
+    h = np.full(act.size, 0.1 * h_max)
+    calls = 0
+    if act.size:
+        f0, _, _ = rhs(y)
+        calls += 1
+    while act.size and calls + 6 <= budget:
+        n_a = act.size
+        k = np.empty((7, n_a, 8))
+        k[0] = f0
+        for st in range(1, 6):
+            dy = np.einsum("s,sij->ij", a_tab[st, :st], k[:st]) if st > 1 else a_tab[1, 0] * k[0]
+            k[st], _, _ = rhs(y + h[:, None] * dy)
+        y_new = y + h[:, None] * np.einsum("s,sij->ij", b_tab, k[:6])
+        k[6], bmag, good = rhs(y_new)
+        calls += 6
+        err = h[:, None] * np.einsum("s,sij->ij", e_tab, k)
+        scale = atol + rtol * np.maximum(np.abs(y), np.abs(y_new))
+        # position, N and the log of the power are controlled; the arc length follows
+        enorm = np.sqrt(np.mean((err[:, :7] / scale[:, :7]) ** 2, axis=1))
+        enorm = np.where(np.isfinite(enorm), enorm, np.inf)
+        ok = (enorm <= 1.0) & good
+        factor = np.where(enorm > 0, 0.9 * np.maximum(enorm, 1e-10) ** -0.2, 5.0)
+        h_next = np.minimum(h * np.clip(factor, 0.2, 5.0), h_max)
+        h_next = np.where(ok | good, h_next, 0.25 * h)
+        names, conds = stopped(y_new, act, bmag)
+        done = np.zeros(n_a, dtype=bool)
+        hit = ok & (names != "")
+        if np.any(hit):
+            j = np.nonzero(hit)[0]
+            q = np.einsum("sij,sp->ijp", k[:, j], p_tab)  # (J, 8, 4)
+            y_end = _locate_stops(stopped, act[j], y[j], y_new[j], h[j], q, names[j])
+            for n, jj in enumerate(j):
+                rows[int(act[jj])].append(y_end[n])
+                ends[int(act[jj])] = str(names[jj])
+            done[j] = True
+        for jj in np.nonzero(ok & ~done)[0]:
+            rows[int(act[jj])].append(y_new[jj].copy())
+        tiny = h_next < 1e-12 * h_max  # the step collapsed: the medium is singular there
+        for jj in np.nonzero(tiny & ~done)[0]:
+            ends[int(act[jj])] = "step_failure"
+        done |= tiny
+        y = np.where(ok[:, None], y_new, y)
+        f0 = np.where(ok[:, None], k[6], f0)
+        h = h_next
+        keep = ~done
+        act, y, f0, h = act[keep], y[keep], f0[keep], h[keep]
+    for i in act:
+        ends[int(i)] = "step_failure"
+    return {i: (np.array(rows[i]), ends.get(i, "step_failure")) for i in rows}, calls
+
+
+def _locate_stops(stopped, idx, y0, y1, h, q, names, rounds: int = 4):
+    """States on the stops met in one step: regula falsi on x ∈ (0, 1] of the dense output
+    y(x) = y0 + h Σ q_p x^(p+1) for each ray's stop g (g(0) < 0 ≤ g(1))."""
+    def state(x):
+        powers = np.cumprod(np.repeat(x[:, None], q.shape[2], axis=1), axis=1)  # x, x², …
+        return y0 + h[:, None] * np.einsum("ijp,ip->ij", q, powers)
+
+    def g_of(yy):
+        _, conds = stopped(yy, idx)
+        return np.array([conds[str(n)][m] for m, n in enumerate(names)])
+
+    lo, hi = np.zeros(len(idx)), np.ones(len(idx))
+    g_lo, g_hi = g_of(y0), g_of(y1)
+    for _ in range(rounds):
+        with np.errstate(divide="ignore", invalid="ignore"):
+            x = lo - g_lo * (hi - lo) / (g_hi - g_lo)
+        x = np.where(np.isfinite(x), np.clip(x, lo, hi), 0.5 * (lo + hi))
+        g_x = g_of(state(x))
+        below = g_x < 0
+        lo, g_lo = np.where(below, x, lo), np.where(below, g_x, g_lo)
+        hi, g_hi = np.where(below, hi, x), np.where(below, g_hi, g_x)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        x = lo - g_lo * (hi - lo) / (g_hi - g_lo)
+    x = np.where(np.isfinite(x), np.clip(x, lo, hi), hi)
+    return state(x)
+
+
+def _beam_rays(frequency: float, start, direction, waist: float, *, waist_distance: float = 0.0,
+              rings: int = 3, per_ring: int = 8):
+    """Start points, directions and power shares of rays sampling a Gaussian beam on the plane
+    through `start` normal to `direction`, the waist lying `waist_distance` (m) ahead of it
+    (negative: behind it).
+
+    TEM00 beam in free space (Siegman, *Lasers*, ch. 17): Rayleigh length z_R = π w0²/λ, at a
+    distance z from the waist the radius w(z) = w0 √(1 + (z/z_R)²) and the phase front's
+    radius of curvature R(z) = z (1 + (z_R/z)²). The samples of :func:`beam_samples` are
+    scaled to w(z) (same power shares: the profile keeps its shape) and each ray leaves
+    normal to the phase front, at the angle atan(ρ/R(z)) from the axis: converging towards a
+    waist ahead, diverging from one behind. At the waist (waist_distance 0) this is
+    :func:`beam_samples` with parallel rays. Returns (points (K, 3), directions (K, 3), shares
+    (K,)).
+    """
+    f = float(frequency)
+    if not (math.isfinite(f) and f > 0):
+        raise ValueError("frequency must be a positive finite number (Hz)")
+    zd = float(waist_distance)
+    if not math.isfinite(zd):
+        raise ValueError("waist_distance must be a finite length (m)")
+    d = _unit(np.asarray(direction, dtype=float).reshape(3))
+    c = np.asarray(start, dtype=float).reshape(3)
+    points, shares = beam_samples(c, d, waist, rings=rings, per_ring=per_ring)
+    z = -zd  # position of the sample plane measured from the waist along the beam
+    z_r = math.pi * float(waist) ** 2 * f / C_LIGHT
+    grow = math.sqrt(1.0 + (z / z_r) ** 2)
+    offsets = (points - c) * grow
+    # slope of a ray at radius ρ: ρ / R(z) = ρ z / (z² + z_R²)
+    slope = z / (z * z + z_r * z_r)
+    dirs = d[None, :] + slope * offsets
+    dirs /= np.linalg.norm(dirs, axis=1)[:, None]
+    return c + offsets, dirs, shares
+
+
 def trace_beam(frequency: float, waist_position, direction, waist: float, mode: str,
-               b_field, density, *, rings: int = 3, per_ring: int = 8, **options) -> Beam:
-    """Trace a Gaussian beam as a bundle of rays (:func:`beam_samples`, :func:`trace_rays`)."""
-    points, shares = beam_samples(waist_position, direction, waist, rings=rings,
-                                  per_ring=per_ring)
-    rays = trace_rays(frequency, points, direction, mode, b_field, density, **options)
+               b_field, density, *, rings: int = 3, per_ring: int = 8,
+               waist_distance: float = 0.0, **options) -> Beam:
+    """Trace a Gaussian beam as a bundle of rays (:func:`_beam_rays`, :func:`trace_rays`).
+
+    With `waist_distance` 0 the rays start at the waist (`waist_position`), parallel; else
+    they start on the plane through `waist_position` with the waist that far ahead."""
+    points, dirs, shares = _beam_rays(frequency, waist_position, direction, waist,
+                                     waist_distance=waist_distance, rings=rings,
+                                     per_ring=per_ring)
+    rays = trace_rays(frequency, points, dirs, mode, b_field, density, **options)
     return Beam(rays, shares)
 
 

@@ -139,4 +139,7 @@ def all_figures(run) -> list[dict]:
         fig = make(run)
         if fig:
             out.append(fig)
+    from .figure_rays import ray_figures
+
+    out.extend(ray_figures(run))  # off-axis, oblique and beam launches only
     return out
