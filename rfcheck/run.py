@@ -113,6 +113,8 @@ class Run:
     #: the previous revision this run is reviewed against (`check --previous`): its role,
     #: file, SHA-256 and the change summary (rfcheck.changes), or None
     previous: dict | None = None
+    #: the previous revision's input files (attached to the PDF beside this run's own)
+    previous_inputs: tuple[InputRecord, ...] = field(default=(), repr=False, compare=False)
 
     def coverage_problems(self) -> tuple[str, ...]:
         """Why this run did not review the design, if it did not (empty when it did)."""
