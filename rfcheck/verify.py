@@ -92,7 +92,8 @@ def is_pdf(path: Path) -> bool:
         return False
 
 
-_HEX64 = re.compile(r"\b[0-9a-f]{64}\b")
+#: a full digest as Appendix D prints it ("SHA-256 <64 hex>"; a line break may fall inside)
+_HEX64 = re.compile(r"SHA-256\s+((?:[0-9a-f]\s*){64})")
 
 
 def read_report(path: str | Path) -> Archive:
@@ -123,15 +124,18 @@ def read_report(path: str | Path) -> Archive:
             items = raw[name]
             attachments[name] = bytes(items[0]) if items else b""
         pages = reader.pages
-        cover = "\n".join((pages[i].extract_text() or "") for i in range(min(2, len(pages))))
+        cover = "\n".join((pages[i].extract_text() or "") for i in range(min(3, len(pages))))
         # the full digests: Appendix D near the end; read from the back until found
         digests: list[str] = []
-        for i in range(len(pages) - 1, max(-1, len(pages) - 15), -1):
+        seen = False
+        for i in range(len(pages) - 1, max(-1, len(pages) - 6), -1):
             text = pages[i].extract_text() or ""
-            if "Appendix D" in text or "SHA-256" in text:
-                found = _HEX64.findall(re.sub(r"\s+", "", text))
-                if found:
-                    digests = found + digests
+            digests = [re.sub(r"\s+", "", h) for h in _HEX64.findall(text)] + digests
+            if "Appendix D" in text:
+                seen = True
+                break
+        if not seen:
+            digests = []
     except ArchiveError:
         raise
     except Exception as exc:  # noqa: BLE001 - any parse failure of a foreign file is bad input
