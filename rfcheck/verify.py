@@ -273,6 +273,10 @@ def _close(a, b, rtol: float = RERUN_RTOL) -> bool:
     return a == b
 
 
+def _g(x) -> str:
+    return "none" if x is None else f"{x:.10g}" if isinstance(x, float) else str(x)
+
+
 def _value(q):
     return q.get("value") if isinstance(q, dict) else None
 
@@ -306,7 +310,8 @@ def finding_differences(old: list[dict], new: list[dict]) -> list[str]:
                 x, y = _value(a.get(q)), _value(b.get(q))
                 if not _close(x, y):
                     unit = (a.get(q) or b.get(q) or {}).get("unit", "")
-                    what.append(f"{q} {x} {unit} recorded, {y} {unit} now".replace("  ", " "))
+                    unit = "" if unit == "1" else f" {unit}"
+                    what.append(f"{q} {_g(x)}{unit} recorded, {_g(y)}{unit} now")
             if a.get("message") != b.get("message") and not what:
                 what.append("message differs (recorded: " + str(a.get("message"))[:160]
                             + " / now: " + str(b.get("message"))[:160] + ")")
