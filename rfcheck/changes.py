@@ -158,6 +158,11 @@ def _num(f: dict | None, key: str) -> float | None:
 # --------------------------------------------------------------------------- spec diff
 
 
+def _tol(x: float) -> str:
+    """1e-09 -> '1e-9'."""
+    return f"{x:g}".replace("e-0", "e-")
+
+
 def _same(a, b) -> bool:
     if isinstance(a, bool) or isinstance(b, bool):
         return a is b
@@ -504,8 +509,8 @@ class ChangeSet:
                f"spec SHA-256 {self.new.run.spec_sha256[:16]}…)", ""]
         changes = self.values + self.inputs + self.policy
         out.append(f"What changed ({len(changes)}; values in SI, relative tolerance "
-                   f"{VALUE_RTOL:g}):" if changes else
-                   f"What changed: nothing (values in SI, relative tolerance {VALUE_RTOL:g})")
+                   f"{_tol(VALUE_RTOL)}):" if changes else
+                   f"What changed: nothing (values in SI, relative tolerance {_tol(VALUE_RTOL)})")
         out += [f"  {c.line()}" for c in changes]
         out.append("")
         moved = self.moved
@@ -513,7 +518,7 @@ class ChangeSet:
         out += [f"  {c.line()}" for c in moved]
         margins = [c for c in self.findings if not c.moved]
         if margins:
-            out.append(f"Margins changed beyond {MARGIN_RTOL:g} relative ({len(margins)}):")
+            out.append(f"Margins changed beyond {_tol(MARGIN_RTOL)} relative ({len(margins)}):")
             out += [f"  {c.line()}" for c in margins]
         out.append("")
         word = s["new"]["verdict_word"]

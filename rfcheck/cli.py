@@ -213,7 +213,9 @@ def diff(old: Path, new: Path, policy_path: Path | None, json_out: str | None,
     if changes.exit_code:
         moved = sorted({c.rule for c in changes.moved})
         worse = sorted({c.rule for c in changes.worsened if not c.moved})
-        parts = ([f"verdict {changes.old.run.verdict} → {changes.new.run.verdict}"]
+        from rfcheck.views import verdict_word
+
+        parts = ([f"verdict {verdict_word(changes.old.run)} → {verdict_word(changes.new.run)}"]
                  if changes.verdict_moved else [])
         parts += [f"moved: {', '.join(moved)}"] if moved else []
         parts += [f"margin worsened: {', '.join(worse)}"] if worse else []
