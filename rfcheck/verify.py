@@ -204,6 +204,11 @@ def materialise(archive: Archive, folder: Path) -> Laid:
                 raise ArchiveError(f"{archive.path}: the {e['role']} {e['file']} is named by an "
                                    "absolute path; it cannot be laid out beside the spec")
             ups = max(ups, sum(1 for part in p.parts if part == ".."))
+    for e, _ in pairs:
+        name = PurePosixPath(str(e["file"]).replace("\\", "/")).name
+        if name in ("", ".", "..") or len(name) > 255 or "\x00" in name:
+            raise ArchiveError(f"{archive.path}: the results name a {e['role']} file that "
+                               "cannot be laid out (an empty, '.' or '..' name)")
     base = folder.joinpath(*[f"d{k}" for k in range(ups)]) if ups else folder
     base.mkdir(parents=True, exist_ok=True)
     spec_entry, spec_name = specs[0]
@@ -224,8 +229,12 @@ def materialise(archive: Archive, folder: Path) -> Laid:
             if folder.resolve() not in target.parents:
                 raise ArchiveError(f"{archive.path}: the {role} {e['file']} would leave the "
                                    "folder it is laid out in")
-        target.parent.mkdir(parents=True, exist_ok=True)
-        target.write_bytes(data)
+        try:
+            target.parent.mkdir(parents=True, exist_ok=True)
+            target.write_bytes(data)
+        except OSError as exc:
+            raise ArchiveError(f"{archive.path}: the {role} {str(e['file'])[:80]} cannot be "
+                               f"laid out ({exc.strerror or type(exc).__name__})") from None
     return Laid(spec_path, policy_path)
 
 
@@ -387,7 +396,11 @@ def verify(path: str | Path) -> Report:
         rep.checks.append("no evaluation instant recorded (an older report): waivers are "
                           "evaluated now")
     with tempfile.TemporaryDirectory(prefix="rfcheck-verify-") as tmp:
-        laid = materialise(archive, Path(tmp))
+        try:
+            laid = materialise(archive, Path(tmp))
+        except ArchiveError as exc:  # an rfcheck report whose attachments cannot be re-run
+            rep.differences.append(f"the attachments cannot be re-run: {exc}")
+            return rep
         try:
             new = run(load_spec(laid.spec), load_policy(laid.policy), evaluated_at=at)
         except InputError as exc:

@@ -121,6 +121,21 @@ def test_replaced_attachment_with_consistent_results(report, tmp_path):
     assert not outcome.matches
 
 
+def test_results_naming_an_unplaceable_file(report, tmp_path, capsys):
+    """Results edited to name the spec '..': described, nothing written outside the folder."""
+    def rename(data: bytes) -> bytes:
+        results = json.loads(data)
+        results["inputs"][0]["file"] = ".."
+        return json.dumps(results).encode()
+
+    edited = tmp_path / "dotdot.pdf"
+    _edit(report, edited, "rfcheck-results.json", rename)
+    assert main(["verify", str(edited)]) == 1
+    out = capsys.readouterr().out
+    assert "DIFFERS: the attachments cannot be re-run" in out
+    assert "listed in the results but not attached" in out
+
+
 def test_report_claiming_a_newer_rule_set(tmp_path, monkeypatch, capsys):
     import rfcheck.report.context as context
     import rfcheck.run as run_module
