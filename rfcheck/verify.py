@@ -220,7 +220,8 @@ def materialise(archive: Archive, folder: Path) -> Laid:
         if role == "specification":
             target = spec_path
         elif role == "policy":
-            target = folder / ("policy-" + PurePosixPath(str(e["file"])).name)
+            # its own name (the run records it), in a folder of its own
+            target = folder / "policy" / PurePosixPath(str(e["file"])).name
             policy_path = target
         elif role == "site exposure table":
             target = base / PurePosixPath(str(e["file"])).name
