@@ -183,6 +183,11 @@ def diff(old: Path, new: Path, policy_path: Path | None, json_out: str | None,
 
     plan(_targets(json_out, pdf_out, html_out))
     changes = compare(old, new, policy_path)
+    if policy_path is not None:
+        for side in (changes.old, changes.new):
+            if side.kind == "report":
+                click.echo(for_terminal(f"note: {side.origin} is an archived report: its "
+                                        "attached policy was used, not --policy"), err=True)
     items = []
     payload = None
     if json_out is not None:
