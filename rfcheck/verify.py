@@ -416,8 +416,10 @@ def verify(path: str | Path) -> Report:
                                f"{fresh['verdict'].upper()} on re-run")
     if not diffs:
         n = len(fresh["findings"])
+        from rfcheck.views import verdict_word
+
         rep.checks.append(f"re-run at {at.isoformat() if at else 'now'}: all {n} findings and "
-                          f"the verdict {fresh['verdict'].upper()} as recorded")
+                          f"the verdict {verdict_word(new)} as recorded")
     return rep
 
 
