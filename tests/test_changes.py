@@ -9,6 +9,7 @@ definitions of SI and CGS (1 G = 1e-4 T, BIPM SI Brochure, 9th ed., table 9).
 
 from __future__ import annotations
 
+import hashlib
 import json
 import math
 import tomllib
@@ -224,3 +225,12 @@ def test_diff_of_archived_reports_equals_diff_of_specs(archived):
     from_pdfs = _comparable(compare(archived["c"], archived["d"]).summary())
     assert from_pdfs == from_specs
     assert from_pdfs["moved_rules"] == ["load.plasma-reflection", "load.reflected-power"]
+
+
+def test_check_previous_accepts_an_archived_report(archived, capsys):
+    assert main(["check", str(REV_D), "--previous", str(archived["c"]), "--json", "-"]) == 1
+    data = json.loads(capsys.readouterr().out)
+    prev = data["previous"]
+    assert prev["kind"] == "report" and prev["revision"] == "C"
+    assert prev["spec_sha256"] == hashlib.sha256(DEMO.read_bytes()).hexdigest()
+    assert prev["change"]["moved_rules"] == ["load.plasma-reflection", "load.reflected-power"]
