@@ -141,7 +141,11 @@ def test_report_claiming_a_newer_rule_set(tmp_path, monkeypatch, capsys):
     import rfcheck.run as run_module
     from rfcheck.report.render import render_pdf
 
-    result = run(load_spec(DEMO), load_policy(None))
+    from test_pdf_epoch import NARROW
+
+    policy = tmp_path / "narrow.toml"  # a short report: the claim is on the cover either way
+    policy.write_text(NARROW, encoding="utf-8")
+    result = run(load_spec(DEMO), load_policy(policy))
     monkeypatch.setattr(run_module, "RULESET_VERSION", "2")
     monkeypatch.setattr(context, "RULESET_VERSION", "2")
     newer = tmp_path / "newer.pdf"
