@@ -1,10 +1,13 @@
-"""rfcheck diff: the normalised spec diff and the verdict diff.
+"""rfcheck diff and check --previous: the normalised spec diff, the verdict diff and the
+change-control report.
 
 References: the on-axis field of a thick solenoid of uniform current density (Montgomery,
 "Solenoid Magnet Design", Wiley 1969, ch. 1: B_z(z) = μ0 J / 2 · [F(z - z1) - F(z - z2)],
 F(x) = x ln((b + √(b² + x²)) / (a + √(a² + x²))), J = N I / ((b - a) L)); the electron
 cyclotron resonance B_ECR = 2π f m_e / e (CODATA constants through scipy.constants); unit
-definitions of SI and CGS (1 G = 1e-4 T, BIPM SI Brochure, 9th ed., table 9).
+definitions of SI and CGS (1 G = 1e-4 T, BIPM SI Brochure, 9th ed., table 9); SHA-256
+(FIPS 180-4, through hashlib); the reports' text read back with pypdfium2 and their
+attachments with pypdf, outside libraries.
 """
 
 from __future__ import annotations
@@ -15,6 +18,8 @@ import math
 import tomllib
 
 import numpy as np
+import pypdf
+import pypdfium2
 import pytest
 import scipy.constants as C
 import tomli_w
@@ -204,14 +209,14 @@ def test_diff_cli_exit_codes(tmp_path, capsys, demo_text, write_spec):
 
 @pytest.fixture(scope="module")
 def archived(tmp_path_factory):
-    """Archived PDF reports of the example change pair (revision C and D)."""
+    """Archived PDF reports of the example change pair: revision C, and revision D checked
+    with --previous C (its results JSON beside it)."""
     folder = tmp_path_factory.mktemp("archive")
-    out = {}
-    for name, spec in (("c", DEMO), ("d", REV_D)):
-        pdf = folder / f"rev-{name}.pdf"
-        assert main(["check", str(spec), "--pdf", str(pdf)]) in (0, 1)
-        out[name] = pdf
-    return out
+    c, d, js = folder / "rev-c.pdf", folder / "rev-d.pdf", folder / "rev-d.json"
+    assert main(["check", str(DEMO), "--pdf", str(c)]) == 0
+    assert main(["check", str(REV_D), "--previous", str(DEMO), "--pdf", str(d),
+                 "--json", str(js)]) == 1  # revision D fails
+    return {"c": c, "d": d, "d_results": json.loads(js.read_text(encoding="utf-8"))}
 
 
 def _comparable(summary: dict) -> dict:
@@ -234,3 +239,55 @@ def test_check_previous_accepts_an_archived_report(archived, capsys):
     assert prev["kind"] == "report" and prev["revision"] == "C"
     assert prev["spec_sha256"] == hashlib.sha256(DEMO.read_bytes()).hexdigest()
     assert prev["change"]["moved_rules"] == ["load.plasma-reflection", "load.reflected-power"]
+
+
+# --------------------------------------------------------------------------- the change-control report
+# (the change board's page, DESIGN.md §6: the previous fingerprint, what changed, which verdicts
+# moved and the new verdict on page 1, then the new review, both revisions' files attached;
+# text read back with pypdfium2, attachments with pypdf)
+
+
+def test_check_previous_records_the_previous_fingerprint(archived):
+    results = archived["d_results"]
+    prev = results["previous"]
+    assert prev["spec_sha256"] == hashlib.sha256(DEMO.read_bytes()).hexdigest()
+    assert prev["revision"] == "C" and prev["verdict"] == "warn"
+    assert prev["inputs"][0]["sha256"] == prev["spec_sha256"]
+    assert prev["change"]["moved_rules"] == ["load.plasma-reflection", "load.reflected-power"]
+    assert "evaluated_at" in results
+
+
+def test_change_request_page_comes_first(archived):
+    pdf = archived["d"]
+    doc = pypdfium2.PdfDocument(str(pdf))
+    first = doc[0].get_textpage().get_text_range()
+    cover = doc[1].get_textpage().get_text_range()
+    assert "Change request" in first
+    for text in ("Bench ECR reactor B-2 rev. C", "Bench ECR reactor B-2 rev. D", "FAIL",
+                 "magnet.coils[downstream].current", '"35 A"', '"55 A"',
+                 "load.plasma-reflection", "load.reflected-power", "PASS → FAIL",
+                 hashlib.sha256(DEMO.read_bytes()).hexdigest()[:32]):
+        assert text in first, text
+    assert "Verdict over the declared operating envelope" in cover  # the review follows
+
+
+def test_both_specs_attached(archived):
+    pdf = archived["d"]
+    attached = pypdf.PdfReader(str(pdf)).attachments
+    assert attached[REV_D.name][0] == REV_D.read_bytes()
+    assert attached["previous-" + DEMO.name][0] == DEMO.read_bytes()
+
+
+def test_change_report_verifies(archived):
+    from rfcheck.verify import verify
+
+    outcome = verify(archived["d"])
+    assert outcome.matches, outcome.differences
+
+
+def test_diff_html_has_the_change_page(tmp_path):
+    page = tmp_path / "change.html"
+    assert main(["diff", str(DEMO), str(REV_D), "--html", str(page)]) == 1
+    html = page.read_text(encoding="utf-8")
+    assert html.index("Change request") < html.index("Verdict over the declared operating envelope")
+    assert "magnet.coils[downstream].current" in html
