@@ -11,6 +11,7 @@ import datetime as dt
 import hashlib
 import io
 import json
+import os
 
 import pypdf
 import pytest
@@ -176,3 +177,9 @@ def test_not_an_rfcheck_report(tmp_path, capsys):
     assert "not a PDF file" in capsys.readouterr().err
     assert main(["verify", str(tmp_path)]) == 2
     assert "the report path is a folder; expected a PDF file" in capsys.readouterr().err
+    fifo = tmp_path / "pipe.pdf"
+    os.mkfifo(fifo)  # refused before it is opened: nothing blocks
+    assert main(["verify", str(fifo)]) == 2
+    assert "the report path is a FIFO (named pipe)" in capsys.readouterr().err
+    assert main(["diff", str(fifo), str(DEMO)]) == 2
+    assert "FIFO" in capsys.readouterr().err
