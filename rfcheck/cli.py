@@ -72,6 +72,7 @@ _WHAT = {"--json": "JSON results", "--pdf": "PDF report", "--html": "HTML report
 
 def _emit(result, json_out: str | None, pdf_out: str | None, quiet_table: bool,
           html_out: str | None = None) -> None:
+    from rfcheck import jsontext
     from rfcheck.outputs import commit
     from rfcheck.text import for_terminal
     from rfcheck.views import text_table
@@ -79,7 +80,7 @@ def _emit(result, json_out: str | None, pdf_out: str | None, quiet_table: bool,
     items = []
     payload = None
     if json_out is not None:
-        payload = (json.dumps(result.to_json(), indent=2, allow_nan=False) + "\n").encode()
+        payload = jsontext.dumps(result.to_json()).encode()
         if json_out != "-":
             items.append(("--json", Path(json_out), payload))
     if pdf_out is not None:

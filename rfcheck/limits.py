@@ -67,6 +67,9 @@ KEY_RANGES: dict[str, Range] = {
                        "sintered NdFeB and SmCo magnets reach about 1.5 T"),
     "current_tolerance": Range(0.0, 1.0, "up to 100 %",
                                "a tolerance beyond the current itself is not a tolerance"),
+    "max_temperature_rise": Range(0.0, 2000.0, "up to 2000 K",
+                                  "a rise beyond what any window material survives is a unit slip "
+                                  "(diamond graphitises near 1000 K in air)"),
 }
 
 #: most entries of a list in a spec, with the reason (the key is the list's key)

@@ -263,6 +263,17 @@ class ShortRating:
 
 
 @dataclass(frozen=True)
+class LineRun:
+    """The run of a feed's line: `length` (m), `mitre_bends`, and the declared losses per
+    metre and per bend (dB; None: the line type's default, rfcheck.physics.quasioptical)."""
+
+    length: float  # m
+    mitre_bends: int = 0
+    loss_db_per_m: float | None = None
+    bend_loss_db: float | None = None
+
+
+@dataclass(frozen=True)
 class InductiveCoil:
     """The RF coil of an inductive feed (a cylindrical coil wound round the discharge tube).
 
@@ -304,6 +315,8 @@ class Feed:
     ignition_time: float | None = None
     short_rating: ShortRating | None = None
     coil: InductiveCoil | None = None  # inductive feeds: the coil, when declared
+    transmission: LineRun | None = None  # the line run (length, bends, losses), when declared
+    circulator: str | None = None  # id of the circulator the line passes (shared by id)
 
     @property
     def average_power(self) -> float:
@@ -348,6 +361,7 @@ class Window:
     layers: tuple[WindowLayer, ...]
     max_absorbed_power: float | None = None  # W (average power)
     diameter: float | None = None  # m, clear aperture of a disc window (for thermal estimate)
+    max_temperature_rise: float | None = None  # K, allowed centre-over-rim rise (edge-cooled disc)
 
 
 # --------------------------------------------------------------------------- exposure, review

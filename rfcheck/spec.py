@@ -344,6 +344,30 @@ class InductiveCoilSpec(_Strict):
                                         "conductor (skin effect only, a lower estimate)")
 
 
+class TransmissionSpec(_Strict):
+    length: PosLength = Field(description="length of the line run from the generator (or its "
+                                          "matching optics unit) to the launcher")
+    mitre_bends: int = Field(0, ge=0, le=1000, description="number of 90° mitre bends")
+    loss_db_per_m: float | None = Field(
+        None, ge=0, le=10, description="loss of the straight line, dB per metre; not declared: "
+                                       "the he11 default of rfcheck/data/lines.toml")
+    bend_loss_db: float | None = Field(
+        None, ge=0, le=3, description="loss of one mitre bend, dB; not declared: the he11 default")
+
+
+def _temperature_difference(value: Any) -> Any:
+    """A temperature *difference* must be in K (or mK): an offset scale would add 273.15."""
+    if isinstance(value, str) and any(u in value.lower() for u in ("degc", "°c", "celsius",
+                                                                   "degf", "°f", "fahrenheit")):
+        raise ValueError(f"expected a temperature difference in K, e.g. \"50 K\"; found "
+                         f"{shorten(repr(value), 80)} (an offset scale such as °C adds 273.15)")
+    return value
+
+
+TemperatureRise = Annotated[_quantity("temperature", positive=True, key="max_temperature_rise"),
+                            BeforeValidator(_temperature_difference)]
+
+
 class FeedSpec(_Strict):
     id: Id
     frequency: Frequency
@@ -364,6 +388,12 @@ class FeedSpec(_Strict):
     coil: InductiveCoilSpec | None = Field(
         None, description='the coil of an inductive feed: { turns = 3, radius = "110 mm", '
                           'length = "80 mm", conductor_diameter = "6.35 mm" }')
+    transmission: TransmissionSpec | None = Field(
+        None, description='the line run: { length = "30 m", mitre_bends = 6 } with optional '
+                          'loss_db_per_m and bend_loss_db (defaults for he11 lines)')
+    circulator: Id | None = Field(
+        None, description="id of the circulator (and its load) this feed's line passes; feeds "
+                          "giving the same id share it")
 
 
 class MaterialSpec(_Strict):
@@ -395,6 +425,9 @@ class WindowSpec(_Strict):
     layers: list[LayerSpec] = Field(min_length=1, max_length=COUNTS["layers"][0])
     max_absorbed_power: Power | None = None
     diameter: PosLength | None = None
+    max_temperature_rise: TemperatureRise | None = Field(
+        None, description="edge-cooled disc: largest allowed rise of its centre over its cooled "
+                          'rim, e.g. "50 K"')
 
 
 class SurveyReadingSpec(_Strict):
@@ -930,13 +963,15 @@ class _CrossCheck:
                    (m.ShortRating(f.max_reflected_power_short.power,
                                   f.max_reflected_power_short.duration)
                     if f.max_reflected_power_short else None),
-                   _coil(f.coil))
+                   _coil(f.coil), transmission=_transmission(f.transmission),
+                   circulator=f.circulator)
             for f in s.feed)
         windows = tuple(
             m.Window(w.id, w.feed, w.z,
                      tuple(m.WindowLayer(la.material, la.thickness, la.thickness_tolerance)
                            for la in w.layers),
-                     w.max_absorbed_power, w.diameter)
+                     w.max_absorbed_power, w.diameter,
+                     max_temperature_rise=w.max_temperature_rise)
             for w in s.window)
         materials = tuple(m.Material(mt.id, mt.permittivity, mt.loss_tangent, mt.frequency,
                                      mt.source, "user", (), mt.thermal_conductivity,
@@ -964,6 +999,15 @@ def _coil(c: InductiveCoilSpec | None):
         return None
     return m.InductiveCoil(float(c.turns), c.radius, c.length, c.conductor_diameter,
                            None if c.resistance is None else float(c.resistance))
+
+
+def _transmission(t: TransmissionSpec | None):
+    """The model's LineRun of a declared line run (None if not declared)."""
+    from rfcheck import model as m
+
+    if t is None:
+        return None
+    return m.LineRun(t.length, int(t.mitre_bends), t.loss_db_per_m, t.bend_loss_db)
 
 
 def _cold_gamma(cc: ColdCavitySpec | None) -> float | None:

@@ -28,6 +28,8 @@ CASES = (
     ("min-b-ion-source.toml", "min-b-site-policy.toml"),
     ("icp-etch-source.toml", None),
     ("pm-ecr-thruster.toml", None),
+    ("ech-launcher-140ghz.toml", None),
+    ("dual-frequency-min-b.toml", None),
 )
 
 

@@ -81,11 +81,6 @@ def polygon_faces(mp: Multipole, centres, polarisation, step, chords: tuple[int,
     return tuple(np.array(a) for a in (starts, tangents, normals, lengths, sigmas))
 
 
-def _signed_log(s, radius):
-    """sign(s) ln(|s| + R): ln(s + R) for s >= 0, and ln(s + R) - ln(R^2 - s^2) for s < 0."""
-    return np.where(s >= 0, 1.0, -1.0) * np.log(np.abs(s) + radius)
-
-
 def facet_field(points, faces, z1, z2, block: int = 128):
     """B (n, 3) of uniformly charged rectangles {A + u t, z1 <= z <= z2}.
 
@@ -94,42 +89,57 @@ def facet_field(points, faces, z1, z2, block: int = 128):
     atan(a b / (v R)) with a, b the in-face offsets and v the normal distance to the face,
     as in the cuboid-magnet field of E. P. Furlani, *Permanent Magnet and Electromechanical
     Devices*, Academic Press 2001; chapter from memory), with the logarithms written so that
-    no cancellation occurs on the far side of a face.
+    no cancellation occurs on the far side of a face: sign(s) ln(|s| + R) stands for
+    ln(s + R) and, for s < 0, ln(s + R) - ln(R^2 - s^2).
+
+    The four corners of a face enter with alternating signs, so the two logarithms that
+    share an offset are taken as one logarithm of their ratio and the two arctangents that
+    share a corner row as one arctan2 (atan x - atan y = atan2(x - y, 1 + x y), exact for
+    |atan| < pi/2): four logarithms and two arctangents per face and point instead of eight
+    and four. Agrees with the corner-by-corner sum to ~1e-12 of the largest |B| of a call
+    (tests/magnet/test_facets.py).
     """
     starts, tangents, normals, lengths, sigma = faces
     out = np.empty((len(points), 3))
+    tiny = np.finfo(float).tiny
+    sx, sy = starts[:, 0], starts[:, 1]
+    tx, ty, nx, ny = tangents[:, 0], tangents[:, 1], normals[:, 0], normals[:, 1]
     for s in range(0, len(points), block):
         p = points[s:s + block]
-        dx = p[:, None, 0] - starts[None, :, 0]
-        dy = p[:, None, 1] - starts[None, :, 1]
-        u = dx * tangents[:, 0] + dy * tangents[:, 1]
-        v = dx * normals[:, 0] + dy * normals[:, 1]
+        dx = p[:, 0, None] - sx
+        dy = p[:, 1, None] - sy
+        a1 = dx * tx + dy * ty  # in-face offsets from the two edges along t
+        a2 = a1 - lengths
+        v = dx * nx + dy * ny  # distance from the face's plane
         v2 = v * v
-        a_vals = (u, u - lengths)  # signs +, -
-        b_vals = (p[:, None, 2] - z1, p[:, None, 2] - z2)  # signs +, -
-        it = np.zeros(u.shape)
-        iz = np.zeros(u.shape)
-        inn = np.zeros(u.shape)
-        for ia, a in enumerate(a_vals):
-            a2 = a * a
-            for ib, b in enumerate(b_vals):
-                sign = 1.0 if ia == ib else -1.0
-                radius = np.sqrt(a2 + v2 + b * b)
-                it -= sign * _signed_log(b, radius)
-                iz -= sign * _signed_log(a, radius)
-                with np.errstate(divide="ignore", invalid="ignore"):
-                    inn += sign * np.where(v != 0, np.arctan(a * b / (v * radius)), 0.0)
+        with np.errstate(divide="ignore"):
+            inv_v = np.where(v != 0, 1.0 / v, 0.0)  # atan(a b / (v R)) -> 0 in the plane
+        b1 = p[:, 2, None] - z1  # offsets from the two ends along z
+        b2 = p[:, 2, None] - z2
+        q1, q2 = a1 * a1 + v2, a2 * a2 + v2
+        bb1, bb2 = b1 * b1, b2 * b2
+        r11, r12 = np.sqrt(q1 + bb1), np.sqrt(q1 + bb2)
+        r21, r22 = np.sqrt(q2 + bb1), np.sqrt(q2 + bb2)
+        ab1, ab2, aa1, aa2 = np.abs(b1), np.abs(b2), np.abs(a1), np.abs(a2)
+        sb1, sb2 = np.where(b1 >= 0, 1.0, -1.0), np.where(b2 >= 0, 1.0, -1.0)
+        sa1, sa2 = np.where(a1 >= 0, 1.0, -1.0), np.where(a2 >= 0, 1.0, -1.0)
+        it = sb2 * np.log((ab2 + r12) / (ab2 + r22)) - sb1 * np.log((ab1 + r11) / (ab1 + r21))
+        iz = sa2 * np.log((aa2 + r21) / (aa2 + r22)) - sa1 * np.log((aa1 + r11) / (aa1 + r12))
+        w1, w2 = a1 * inv_v, a2 * inv_v
+        x11, x12 = w1 * b1 / r11, w1 * b2 / r12
+        x21, x22 = w2 * b1 / r21, w2 * b2 / r22
+        inn = np.arctan2(x11 - x12, 1.0 + x11 * x12) + np.arctan2(x22 - x21, 1.0 + x22 * x21)
         # restore the ln(q) terms where the observer lies between the two corner planes
-        tiny = np.finfo(float).tiny
-        straddle_b = (b_vals[1] < 0) & (b_vals[0] >= 0)
-        for a, sign in zip(a_vals, (1.0, -1.0)):
-            it += np.where(straddle_b, sign * np.log(np.maximum(a * a + v2, tiny)), 0.0)
-        straddle_a = (a_vals[1] < 0) & (a_vals[0] >= 0)
-        for b, sign in zip(b_vals, (1.0, -1.0)):
-            iz += np.where(straddle_a, sign * np.log(np.maximum(v2 + b * b, tiny)), 0.0)
+        straddle_b = (b2 < 0) & (b1 >= 0)
+        if straddle_b.any():
+            it += np.where(straddle_b, np.log(np.maximum(q1, tiny) / np.maximum(q2, tiny)), 0.0)
+        straddle_a = (a2 < 0) & (a1 >= 0)
+        if straddle_a.any():
+            iz += np.where(straddle_a,
+                           np.log(np.maximum(v2 + bb1, tiny) / np.maximum(v2 + bb2, tiny)), 0.0)
         it *= sigma
         inn *= sigma
-        out[s:s + block, 0] = it @ tangents[:, 0] + inn @ normals[:, 0]
-        out[s:s + block, 1] = it @ tangents[:, 1] + inn @ normals[:, 1]
+        out[s:s + block, 0] = it @ tx + inn @ nx
+        out[s:s + block, 1] = it @ ty + inn @ ny
         out[s:s + block, 2] = iz @ sigma
     return out / (2.0 * TWO_PI)

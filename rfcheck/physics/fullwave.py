@@ -199,29 +199,83 @@ def _magnus_backward(za, zb, evaluate, coefficients, k0):
     return ch - sinhc * o11, -sinhc * o12, -sinhc * o21, ch + sinhc * o11
 
 
-def _suffix_products(p):
-    """Q_k = P_k P_{k+1} ... P_{K-1}, normalised, with log scales (Hillis–Steele scan)."""
+def _normalise(m):
+    """m (4, ...) divided by its largest entry per position, and the log of that entry."""
+    sc = np.max(np.abs(m), axis=0)
+    sc = np.where(sc > 0, sc, 1.0)
+    return m / sc, np.log(sc)
+
+
+def _suffix_scan(p, log_p):
+    """Q_k = P_k P_{k+1} ... P_{K-1} over ``p`` (4, K), normalised, with log scales
+    (Hillis–Steele scan, log2 K passes). ``log_p`` are the log scales of the factors."""
+    p, log_s = _normalise(p)
     p = list(p)
-    scale = np.max(np.abs(np.stack(p)), axis=0)
-    p = [x / scale for x in p]
-    log_s = np.log(scale)
+    log_s = log_s + log_p
     n = p[0].size
     d = 1
     while d < n:
         q11, q12, q21, q22 = (x[d:] for x in p)
         r11, r12, r21, r22 = (x[:-d] for x in p)
-        n11 = r11 * q11 + r12 * q21
-        n12 = r11 * q12 + r12 * q22
-        n21 = r21 * q11 + r22 * q21
-        n22 = r21 * q12 + r22 * q22
-        sc = np.max(np.abs(np.stack([n11, n12, n21, n22])), axis=0)
-        sc = np.where(sc > 0, sc, 1.0)
-        new_log = log_s[:-d] + log_s[d:] + np.log(sc)
-        for x, y in zip(p, (n11, n12, n21, n22)):
-            x[:-d] = y / sc
+        nm, sc = _normalise(np.stack([r11 * q11 + r12 * q21, r11 * q12 + r12 * q22,
+                                      r21 * q11 + r22 * q21, r21 * q12 + r22 * q22]))
+        new_log = log_s[:-d] + log_s[d:] + sc
+        for x, y in zip(p, nm):
+            x[:-d] = y
         log_s = np.concatenate([new_log, log_s[-d:]])
         d *= 2
-    return p, log_s
+    return np.stack(p), log_s
+
+
+#: factors multiplied in sequence inside one block of the suffix products
+_BLOCK = 16
+
+
+def _suffix_products(p):
+    """Q_k = P_k P_{k+1} ... P_{K-1}, normalised, with log scales.
+
+    Blocked: the K factors are cut into blocks of ``_BLOCK``; inside each block the suffix
+    products are formed in sequence (one pass over the block's columns, vectorised over all
+    blocks), the block totals are scanned (:func:`_suffix_scan`, log2(K/_BLOCK) passes) and
+    each block's products are multiplied by the total of the blocks after it. The same
+    products as scanning all K factors, in about a third of the time. Inside a block no
+    rescaling is needed: every factor is divided by its largest entry first, so a product of
+    _BLOCK factors has entries below 2**_BLOCK, and the determinant of each factor (1 before
+    the division by a scale close to 1 for a cell of phase step <= max_phase_step) keeps it
+    far from underflow."""
+    m, log_p = _normalise(np.stack([np.asarray(x, complex) for x in p]))
+    n = m.shape[1]
+    nb = -(-n // _BLOCK)
+    pad = nb * _BLOCK - n
+    if pad:  # identity factors at the end change no product
+        eye = np.zeros((4, pad), complex)
+        eye[0] = eye[3] = 1.0
+        m = np.concatenate([m, eye], axis=1)
+        log_p = np.concatenate([log_p, np.zeros(pad)])
+    m = m.reshape(4, nb, _BLOCK)
+    log_p = log_p.reshape(nb, _BLOCK)
+    q = np.empty_like(m)
+    q[:, :, -1] = m[:, :, -1]
+    a11, a12, a21, a22 = m[:, :, -1]
+    for j in range(_BLOCK - 2, -1, -1):
+        r11, r12, r21, r22 = m[:, :, j]
+        a11, a12, a21, a22 = (r11 * a11 + r12 * a21, r11 * a12 + r12 * a22,
+                              r21 * a11 + r22 * a21, r21 * a12 + r22 * a22)
+        q[0, :, j], q[1, :, j], q[2, :, j], q[3, :, j] = a11, a12, a21, a22
+    q, log_q = _normalise(q)
+    log_q += np.cumsum(log_p[:, ::-1], axis=1)[:, ::-1]
+    totals, log_t = _suffix_scan(q[:, :, 0], log_q[:, 0])
+    after = np.zeros((4, nb), complex)  # the product of the blocks after each block
+    after[0] = after[3] = 1.0
+    after[:, :-1] = totals[:, 1:]
+    log_after = np.zeros(nb)
+    log_after[:-1] = log_t[1:]
+    r11, r12, r21, r22 = (x[:, None] for x in after)
+    q11, q12, q21, q22 = q
+    out, log_out = _normalise(np.stack([q11 * r11 + q12 * r21, q11 * r12 + q12 * r22,
+                                        q21 * r11 + q22 * r21, q21 * r12 + q22 * r22]))
+    log_out += log_q + log_after[:, None]
+    return list(out.reshape(4, -1)[:, :n]), log_out.reshape(-1)[:n]
 
 
 def _eigen_h(m11, m12, m21):

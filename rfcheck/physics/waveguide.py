@@ -49,6 +49,7 @@ __all__ = [
     "rectangular_guide",
     "circular_guide",
     "coaxial_line",
+    "corrugated_guide",
     "free_space",
     "line_from_name",
     "line_names",
@@ -372,6 +373,30 @@ def coaxial_line(inner_diameter: float, outer_diameter: float, eps_r: float = 1.
         confidence=confidence, band_basis="0.95 f_TE11 rule of thumb")
 
 
+#: smallest a/λ (guide radius over free-space wavelength) at which the HE11 forms of
+#: rfcheck.physics.quasioptical are used: the J0 profile and the loss laws are asymptotic in
+#: ka ≫ 1; lines in use run at a/λ ≈ 5-30 (from memory, L; a configurable default)
+HE11_MIN_RADIUS_WAVELENGTHS = 3.0
+
+
+def corrugated_guide(diameter: float, name: str = "", *, source: str = "declared in the spec") -> Line:
+    """Oversized corrugated circular guide (or quasi-optical line) carrying the HE11 mode.
+
+    An oversized line has no cutoff in its band and many modes above cutoff: what keeps the
+    power in HE11 is the corrugated wall (grooves ≈ λ/4 deep), not a single-mode band, so the
+    line has no recommended band (0 … ∞) and no "next mode"; ``line.waveguide-band`` checks
+    instead that the guide is oversized (a/λ ≥ :data:`HE11_MIN_RADIUS_WAVELENGTHS`). Field,
+    power capacity and loss: :mod:`rfcheck.physics.quasioptical`.
+    """
+    if not diameter > 0:
+        raise ValueError(f"corrugated guide needs a positive diameter, got {diameter}")
+    return Line(
+        name=name or f"HE11 {diameter * 1e3:g} mm", kind="corrugated", cutoff=0.0,
+        next_cutoff=math.inf, dominant_mode="HE11", next_mode="",
+        recommended_band=(0.0, math.inf), source=source, dimensions=(("diameter", diameter),),
+        band_basis=f"oversized HE11 guide, a/λ ≥ {HE11_MIN_RADIUS_WAVELENGTHS:g}")
+
+
 def free_space() -> Line:
     """Free space (quasi-optical feed): TEM plane wave, no cutoff, no next mode."""
     return Line(name="free-space", kind="free-space", cutoff=0.0, next_cutoff=math.inf,
@@ -418,6 +443,10 @@ _COAX = re.compile(r"^\s*coax(?:ial)?\s*[:\s]\s*" + _NUMBER + r"\s*/\s*" + _NUMB
                    + r"\s*mm(?:\s*,?\s*eps_?r\s*=?\s*" + _NUMBER + r")?\s*$", re.IGNORECASE)
 
 
+#: ``he11:<D> mm``: an oversized corrugated guide of inner diameter D carrying HE11
+_HE11 = re.compile(r"^\s*he11\s*[:\s]\s*" + _NUMBER + r"\s*mm\s*$", re.IGNORECASE)
+
+
 def line_from_name(name: str) -> Line:
     """Look up a line by name.
 
@@ -426,7 +455,9 @@ def line_from_name(name: str) -> Line:
     ``"free-space"`` / ``"free space"``, ``"circular:<diameter> mm"`` (inner diameter;
     only a plain number followed by ``mm`` is parsed here) and a declared coaxial line
     ``"coax:<d>/<D> mm"`` (inner conductor diameter d, outer conductor bore D, air) or
-    ``"coax:<d>/<D> mm, eps_r <ε_r>"`` (a uniform dielectric filling).
+    ``"coax:<d>/<D> mm, eps_r <ε_r>"`` (a uniform dielectric filling), and an oversized
+    corrugated guide carrying the HE11 mode ``"he11:<D> mm"`` (D the inner diameter at the
+    groove tips; see :func:`corrugated_guide`).
 
     Raises
     ------
@@ -441,6 +472,14 @@ def line_from_name(name: str) -> Line:
     m = _COAX.match(name)
     if m:
         return _coax_from_match(m)
+    m = _HE11.match(name)
+    if m:
+        d = float(m.group(1)) * 1e-3
+        lo, hi = COAX_DIAMETER_RANGE
+        if not lo <= d <= hi:
+            raise ValueError(f"HE11 guide diameter must lie between {lo * 1e3:g} mm and "
+                             f"{hi * 1e3:g} mm")
+        return corrugated_guide(d, name=f"HE11 {m.group(1)} mm corrugated")
     key = _squash(name)
     if key == "FREESPACE":
         return free_space()
@@ -450,8 +489,9 @@ def line_from_name(name: str) -> Line:
             return line
     choices = ", ".join(line_names())
     raise ValueError(f"unknown line {name!r}; valid names: {choices}; IEC designations "
-                     f"(e.g. R26); 'circular:<diameter> mm'; or 'coax:<d>/<D> mm' "
-                     f"(optionally ', eps_r <ε_r>')")
+                     f"(e.g. R26); 'circular:<diameter> mm'; 'coax:<d>/<D> mm' "
+                     f"(optionally ', eps_r <ε_r>'); or 'he11:<diameter> mm' (corrugated "
+                     f"HE11 guide)")
 
 
 #: bounds of a declared coaxial line: ε_r of real fillings (air 1 ... ceramics ~10, with room),

@@ -195,6 +195,7 @@ def build(run, figures: list[dict] | None = None) -> dict:
                  if f.status in (Status.FAIL, Status.ERROR, Status.WARN, Status.WAIVED)]
     m = run.model
     from .budget import budget_rows
+    from .glance import glance
     from .cautions import select_cautions
 
     cautions, cautions_omitted = select_cautions(m, run.findings)
@@ -222,6 +223,7 @@ def build(run, figures: list[dict] | None = None) -> dict:
         "characteristics": _characteristic_rows(run.characteristics),
         "figures": figures or [],
         "power_budget": budget_rows(run),
+        "glance": glance(run),
         "cautions": cautions,
         "cautions_omitted": cautions_omitted,
         "signers": _signers(m.review if m else None),
@@ -231,8 +233,7 @@ def build(run, figures: list[dict] | None = None) -> dict:
                    "notes": m.review.notes if m else ""},
         "spec_text": run.spec_text,
         "policy_texts": [{"name": n, "text": t} for n, t in run.policy_texts],
-        "rules": [{"id": r.id, "summary": r.summary, "severity": r.severity, "applies": r.applies,
-                   "doc": r.doc, "options": r.options} for r in run.rules],
+        **_rule_appendix(run),
         # the change-request page (templates/change-summary.html.j2), when a previous
         # revision was given: rfcheck.changes.ChangeSet.summary()
         "change": (getattr(run, "previous", None) or {}).get("change"),
@@ -249,3 +250,51 @@ def previous_attachments(run, taken: set[str]) -> list[tuple[InputRecord, str]]:
                 else _ATTACHMENT_PREFIX.get(rec.role, "") + base)
         out.append((rec, _distinct("previous-" + name, taken)))
     return out
+
+
+#: headings of a rule's docstring, in order (DEVELOPERS.md, "Adding a rule")
+DOC_HEADINGS = ("What it checks", "Why it matters", "Equation", "Options", "References")
+
+
+def doc_sections(doc: str) -> dict[str, str]:
+    """A rule's docstring split at its headings: {heading: text with lines joined}."""
+    out: dict[str, list[str]] = {}
+    current = None
+    for line in (doc or "").splitlines():
+        stripped = line.strip()
+        if stripped in DOC_HEADINGS:
+            current = stripped
+            out[current] = []
+        elif current is not None:
+            out[current].append(stripped)
+    return {k: " ".join(x for x in v if x) for k, v in out.items()}
+
+
+def _rule_appendix(run) -> dict:
+    """The rules appendix and the effective-policy table, compactly.
+
+    Appendix B documents the rules that evaluated something for this source (id, severity,
+    summary, equation, references); the selected rules whose every finding is not
+    applicable are named in one sentence (each finding says why). The effective policy is
+    one table of every option of those rules: value, where the value came from (default or
+    site policy) and its source (the options of the rules that did not apply are in the
+    attached policy files). The full texts of the rules are in
+    `rfcheck explain`, the policy files are attached to the PDF."""
+    evaluated = {f.rule for f in run.findings if f.status is not Status.NOT_APPLICABLE}
+    rules, idle = [], []
+    for r in run.rules:
+        if r.id not in evaluated:
+            idle.append(r.id)
+            continue
+        sec = doc_sections(r.doc)
+        rules.append({"id": r.id, "summary": r.summary, "severity": r.severity,
+                      "applies": r.applies, "equation": sec.get("Equation", ""),
+                      "references": sec.get("References", "")})
+    policy_rows = [{"rule": r.id, "severity": r.severity, "option": name, "value": o["value"],
+                    "origin": o["origin"], "source": o["source"], "doc": o["doc"]}
+                   for r in run.rules if r.id in evaluated for name, o in r.options.items()]
+    site_texts = [{"name": n, "text": t} for n, t in run.policy_texts if n != "default"]
+    return {"rules": rules, "rules_idle": idle, "policy_rows": policy_rows,
+            "site_policy_texts": site_texts,
+            "rules_without_options": [r.id for r in run.rules
+                                      if not r.options and r.id in evaluated]}

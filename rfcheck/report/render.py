@@ -4,10 +4,11 @@ the results attached (byte for byte what was checked)."""
 from __future__ import annotations
 
 import datetime as dt
-import json
 import os
 from importlib import resources
 from pathlib import Path
+
+from rfcheck import jsontext
 
 from . import context as report_context
 from .figures import all_figures
@@ -121,7 +122,7 @@ def render_pdf(run) -> bytes:
     import weasyprint
 
     html = render_html(run)
-    results = json.dumps(run.to_json(), indent=2, allow_nan=False)
+    results = jsontext.dumps(run.to_json())
     inputs, default_policy = report_context.input_attachments(run)
     attachments = [
         weasyprint.Attachment(string=rec.data, name=name, description=f"input file: {rec.role} "

@@ -7,6 +7,7 @@ Rules evaluate vectorised over the grid and report the worst point, never the no
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -16,6 +17,8 @@ from rfcheck.model import Feed, SourceModel
 
 AXES = ("density", "current_scale", "frequency")
 _UNITS = {"density": "m^-3", "current_scale": "1", "frequency": "Hz"}
+#: relative spread below which grid values count as one value when the worst is chosen
+TIE_RTOL = 1e-9
 
 
 @dataclass(frozen=True)
@@ -67,6 +70,13 @@ class Grid:
         """
         v = np.broadcast_to(np.asarray(values, dtype=float), self.shape)
         key = np.where(np.isnan(v), np.inf, v if sense == "max" else -v)
+        top = float(np.max(key))
+        if math.isfinite(top):
+            # values within TIE_RTOL of the extreme are one value computed along different
+            # paths (e.g. a multipole's field, the same at every coil-current scale, to
+            # rounding): the first grid point among them is the worst case, so the point
+            # named does not depend on the last bits of a kernel
+            key = np.where(key >= top - TIE_RTOL * max(abs(top), 1e-300), 1.0, 0.0)
         idx = np.unravel_index(int(np.argmax(key)), self.shape)
         raw = np.asarray(values, dtype=float)
         axes = {}

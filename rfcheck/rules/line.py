@@ -13,7 +13,10 @@ from rfcheck.physics.rfpower import (breakdown_field, max_forward_power, max_net
                                      te11_peak_field, vswr)
 from rfcheck.physics.coaxial import (COPPER_CONDUCTIVITY, coaxial_max_power, coaxial_peak_field,
                                      coaxial_wall_heating)
-from rfcheck.physics.waveguide import coaxial_characteristic_impedance, line_from_name
+from rfcheck.physics.waveguide import (HE11_MIN_RADIUS_WAVELENGTHS,
+                                       coaxial_characteristic_impedance, line_from_name)
+from rfcheck.physics.quasioptical import (he11_max_power, he11_peak_field, line_run_loss)
+from rfcheck.physics.constants import C
 
 from .context import Context
 from .load import IGNITION, RUNNING, cold_gamma, running_gamma
@@ -38,7 +41,10 @@ def waveguide_band(ctx: Context) -> Iterator[Finding]:
     guide of other dimensions uses the rule of thumb 1.25 f_c … min(1.9 f_c, 0.95 f_next),
     circular guide 1.1 f_c … 0.95 f_TM01, coaxial line up to 0.95 f_TE11. The message names
     the band it used.
-    Free-space (quasi-optical) feeds are not applicable.
+    Free-space (quasi-optical) feeds are not applicable. An oversized corrugated line
+    ("he11:<D> mm") has no single-mode band: the check is that it is oversized for the HE11
+    forms, a/λ ≥ 3 at the bottom of f ± tolerance (the corrugation depth sets the real band
+    and is the supplier's figure).
 
     Why it matters
     Near cutoff the guide wavelength and wave impedance change fast with frequency, wall
@@ -58,6 +64,9 @@ def waveguide_band(ctx: Context) -> Iterator[Finding]:
     for feed in ctx.model.feeds:
         subject = f"feed {feed.id}"
         line = line_from_name(feed.line)
+        if line.kind == "corrugated":
+            yield _he11_band(ctx, feed, line, subject)
+            continue
         if line.cutoff > 0:
             lo, hi = line.recommended_band
             requirement = (f"{line.name}: single-mode band, recommended band "
@@ -108,6 +117,28 @@ def waveguide_band(ctx: Context) -> Iterator[Finding]:
                           warn=not in_band, message=msg,
                           measured=Quantity(measured, "Hz"), limit=Quantity(limit, "Hz"),
                           margin=Quantity(margin, "Hz"), worst_case=worst)
+
+
+def _he11_band(ctx: Context, feed, line, subject: str) -> Finding:
+    """An oversized corrugated (HE11) line has no single-mode band: what the rule can check is
+    that the guide is oversized enough for the HE11 forms, a/λ ≥ HE11_MIN_RADIUS_WAVELENGTHS,
+    at the top of the band (the smallest λ gives the largest a/λ, so the bottom binds)."""
+    f_lo = feed.frequency - feed.frequency_tolerance
+    a = line.dimension("diameter") / 2.0
+    ratio = a * f_lo / C
+    need = HE11_MIN_RADIUS_WAVELENGTHS
+    requirement = (f"{line.name}: oversized guide, a/λ ≥ {need:g} (no single-mode band: the "
+                   "corrugated wall keeps the power in HE11)")
+    msg = (f"a/λ = {ratio:.3g} at {f_lo / 1e9:.5g} GHz (a = {a * 1e3:.4g} mm): "
+           + ("oversized; no TE/TM cutoff or single-mode band applies to a corrugated HE11 line. "
+              "The corrugation depth (about λ/4) sets its band: rfcheck does not know it, so "
+              "check the supplier's design frequency" if ratio >= need else
+              "too small for the HE11 forms (J0 profile, loss laws): the guide is not the "
+              "oversized line they describe"))
+    return ctx.finding(subject, requirement, passed=ratio >= need, message=msg,
+                       measured=Quantity(ratio, "1"), limit=Quantity(need, "1"),
+                       margin=Quantity(ratio - need, "1"),
+                       worst_case={"frequency": Quantity(f_lo, "Hz")})
 
 
 def _watts(x: float) -> str:
@@ -165,6 +196,8 @@ def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
     E0 = √(4 Z_TE10 P / (a b)), Z_TE10 = η0 / √(1 − (f_c/f)²); TE11 on the axis of a guide of
     radius a: E0² = Z_TE p'² P / (π a² (p'² − 1) J1(p')²) ≈ 1.333 Z_TE P / a²;
     coaxial TEM (inner radius a, outer b): E0 = √(2 Z0 P) / (a ln(b/a)),
+    corrugated HE11 (radius a, profile E0 J0(j01 r/a)): E0 = √(2 η0 P / (π a² J1(j01)²)),
+    P_max = π a² J1(j01)² E_bd² / (2 η0), j01 = 2.405;
     Z0 = η0 ln(b/a) / (2π √ε_r), P_max = π √ε_r a² E_bd² ln(b/a) / η0;
     E_pk = (1 + |Γ|) E0;
     limit E_bd / s with E_bd = 3 MV/m;  P_max = a b E_bd² √(1 − (f_c/f)²) / (4 η0);
@@ -186,7 +219,7 @@ def breakdown(ctx: Context, *, safety_factor: float) -> Iterator[Finding]:
                    f"{limit / 1e6:.3g} MV/m (theoretical upper bound)")
     for feed in ctx.model.feeds:
         line = line_from_name(feed.line)
-        if line.kind not in ("rectangular", "circular", "coaxial"):
+        if line.kind not in ("rectangular", "circular", "coaxial", "corrugated"):
             why = ("quasi-optical (free-space) feed: no guide to break down" if line.kind == "free-space"
                    else f"{line.kind} line ({line.dominant_mode}): no peak-field formula in rfcheck "
                         "yet; check against the supplier's power rating")
@@ -225,6 +258,13 @@ def _breakdown_state(ctx, feed, line, state, gamma, source, requirement, limit, 
                  f"{_watts(feed.average_power)} average power (copper, σ = "
                  f"{COPPER_CONDUCTIVITY:.3g} S/m, at a current maximum): the line's thermal "
                  "rating must carry it")
+    elif line.kind == "corrugated":
+        d_dim = line.dimension("diameter")
+        e_pk = he11_peak_field(feed.power, d_dim, gamma) * np.ones_like(f)
+        capacity = lambda fw: float(he11_max_power(d_dim, e_bd))  # noqa: E731
+        extra = ("; HE11 on the axis of the corrugated guide (E0 J0(2.405 r/a) profile). An "
+                 "evacuated line has no gas breakdown but its mitre mirrors and window faces "
+                 "arc where they are contaminated: the supplier's rating governs")
     elif line.kind == "circular":
         d_dim = line.dimension("diameter")
         e_pk = te11_peak_field(feed.power, d_dim, f, gamma)
@@ -260,3 +300,73 @@ def _breakdown_state(ctx, feed, line, state, gamma, source, requirement, limit, 
     return ctx.finding(subject, requirement, passed=margin >= 0, message=msg,
                        measured=Quantity(worst_e, "V/m"), limit=Quantity(limit, "V/m"),
                        margin=Quantity(margin, "V/m"), worst_case=where, details=details)
+
+
+@rule("line.transmission-loss", severity=Severity.WARNING,
+      summary="The loss of each declared line run (per metre and per mitre bend) stays under a "
+              "share of the forward power; the heat it leaves in the line is stated.",
+      options={"max_loss_fraction": Option(
+          "ratio", "largest share of the forward power the line run may lose",
+          valid=Range(0.0, 1.0, "a share of the forward power", "%", low_open=True))},
+      applies="feeds that declare a transmission run (defaults for he11 lines)")
+def transmission_loss(ctx: Context, *, max_loss_fraction: float) -> Iterator[Finding]:
+    """What it checks
+    For a feed that declares its line run (`transmission = { length, mitre_bends, ... }`),
+    the loss L = α L_run + n_bends · L_bend in dB, with α and L_bend as declared, else (for
+    an HE11 line) the defaults of rfcheck/data/lines.toml [he11] (per bend the larger of the
+    tabulated value and the mitre-bend diffraction estimate 0.39 (λ/a)^(3/2)); the lost
+    fraction 1 − 10^(−L/10) against max_loss_fraction. The message gives the power reaching
+    the launcher and the average power left as heat in the line and its mirrors. A feed
+    without a declared run gets no finding; a non-HE11 line without declared losses is not
+    applicable (no default for it).
+
+    Why it matters
+    At 0.1–1 MW a few per cent of loss is kilowatts of heat in mitre mirrors and couplings
+    (they need cooling), and power lost to mode conversion travels on as stray modes that
+    heat the line and leave the launcher outside the intended beam.
+
+    Equation
+    L_dB = α_dB/m · L + n · L_bend; lost = 1 − 10^(−L_dB/10); heat = lost · P_avg.
+
+    Options
+    max_loss_fraction: default 10 % (from memory: heating lines are designed to deliver
+    about 90 % or more of the generator's power).
+
+    References
+    J. L. Doane, in Infrared and Millimeter Waves 13 (Academic Press 1985), ch. 4
+    (corrugated waveguide); J. L. Doane & C. P. Moeller, Int. J. Electronics 77 (1994) 489
+    (mitre bends and gaps). Both from memory: declare the supplier's figures.
+    """
+    requirement = f"line-run loss ≤ {max_loss_fraction:.0%} of the forward power"
+    for feed in ctx.model.feeds:
+        run = feed.transmission
+        if run is None:
+            continue
+        subject = f"feed {feed.id}"
+        line = line_from_name(feed.line)
+        declared = run.loss_db_per_m is not None and (run.bend_loss_db is not None
+                                                      or run.mitre_bends == 0)
+        if line.kind != "corrugated" and not declared:
+            yield ctx.not_applicable(subject, requirement,
+                                     f"{line.name}: no default loss for a {line.kind} line; "
+                                     "declare loss_db_per_m (and bend_loss_db for bends)")
+            continue
+        diameter = line.dimension("diameter") if line.kind in ("corrugated", "circular") else 1.0
+        f_lo = feed.frequency - feed.frequency_tolerance
+        loss = line_run_loss(f_lo, diameter, run.length, run.mitre_bends,
+                             run.loss_db_per_m if run.loss_db_per_m is not None else
+                             (0.0 if line.kind != "corrugated" else None),
+                             run.bend_loss_db if run.bend_loss_db is not None else
+                             (0.0 if line.kind != "corrugated" else None))
+        heat = loss.lost_fraction * feed.average_power
+        msg = (f"{run.length:.4g} m × {loss.per_metre_db:.3g} dB/m ({loss.per_metre_source}) + "
+               f"{run.mitre_bends} mitre bend(s) × {loss.per_bend_db:.3g} dB "
+               f"({loss.per_bend_source}) = {loss.total_db:.3g} dB: {loss.lost_fraction:.3g} of "
+               f"the forward power lost, {_watts(loss.transmitted_fraction * feed.power)} of "
+               f"{_watts(feed.power)} peak reaches the launcher; {_watts(heat)} average left "
+               "in the line, its mirrors and loads (they need cooling rated for it)")
+        yield ctx.finding(subject, requirement, passed=loss.lost_fraction <= max_loss_fraction,
+                          message=msg, measured=Quantity(loss.lost_fraction, "1"),
+                          limit=Quantity(max_loss_fraction, "1"),
+                          margin=Quantity(max_loss_fraction - loss.lost_fraction, "1"),
+                          details={"loss_db": loss.total_db, "heat_w": heat})

@@ -329,3 +329,74 @@ def window_absorbed_power(ctx: Context, *, max_fraction: float) -> Iterator[Find
         yield ctx.finding(subject, requirement, passed=p_abs <= limit, message=msg,
                           measured=Quantity(p_abs, "W"), limit=Quantity(limit, "W"),
                           margin=Quantity(limit - p_abs, "W"), worst_case=_where(a, f, w.point))
+
+
+@rule("window.disc-temperature", severity=Severity.ERROR,
+      summary="Edge-cooled disc windows: the centre's temperature rise over the cooled rim at "
+              "the feed's average power stays under the declared max_temperature_rise.",
+      applies="single-layer windows that declare max_temperature_rise (and a diameter; the "
+              "material a thermal conductivity)")
+def window_disc_temperature(ctx: Context) -> Iterator[Finding]:
+    """What it checks
+    For a window that declares max_temperature_rise: the absorbed power P_abs at the feed's
+    average power, at its worst over f ± tolerance and the layer's spreads (as
+    window.absorbed-power), spread uniformly through a disc of thickness t and the declared
+    diameter 2R, cooled at its rim and insulated on its faces; the steady centre-over-rim rise
+    ΔT against max_temperature_rise. Windows that do not declare it get no finding.
+
+    Derivation: steady radial conduction with a uniform volumetric source q (W/m³) in a solid
+    cylinder, (k/r) d/dr (r dT/dr) + q = 0, T(R) = T_rim, finite at r = 0, gives
+    T(r) − T_rim = q (R² − r²)/(4k), so ΔT = q R²/(4k) at the centre. With the absorbed power
+    P_abs = q π R² t this is ΔT = P_abs/(4π k t): independent of the radius (per unit face
+    area q_s = P_abs/(π R²), ΔT = q_s R²/(4 k t)).
+
+    An estimate: a beam heats the centre more than the rim (an HE11 or Gaussian beam
+    deposits most of its power within about half the radius, raising the centre above this
+    value), the conductivity falls as the disc warms (diamond: by about a third from 300 K to
+    400 K), and face cooling, radiation and the thermal stress are not included.
+
+    Why it matters
+    CVD-diamond windows carry 0.5–1 MW because their conductivity keeps the centre within a
+    few tens of kelvin of the cooled rim; a disc of a lossier grade, or one of another
+    material at that power, runs away thermally or cracks. The limit is the window's thermal
+    design or the supplier's figure.
+
+    Equation
+    ΔT = q R²/(4k) = P_abs/(4π k t), P_abs = (1 − |Γ|² − |T|²) P_peak · duty.
+
+    References
+    F. P. Incropera, D. P. DeWitt, T. L. Bergman, A. S. Lavine, Fundamentals of Heat and Mass
+    Transfer, 6th ed. (Wiley 2007), §3.5.2 (radial conduction with thermal energy generation
+    in a solid cylinder, T(r) = q r0²/(4k) (1 − r²/r0²) + T_s); H. S. Carslaw & J. C. Jaeger,
+    Conduction of Heat in Solids (1959).
+    """
+    for window in ctx.model.windows:
+        limit = window.max_temperature_rise
+        if limit is None:
+            continue
+        subject = f"window {window.id}"
+        requirement = f"centre-over-rim rise ≤ {limit:.4g} K (edge-cooled disc)"
+        a = window_analysis(ctx, window)
+        w = a.absorption
+        if math.isnan(w.value):
+            yield ctx.finding(subject, requirement, passed=False,
+                              message=f"absorbed power is undefined: {_NO_WAVE}",
+                              measured=Quantity(None, "K", _NO_WAVE), limit=Quantity(limit, "K"))
+            continue
+        p_abs = float(absorbed_power(a.feed.average_power, w.value))
+        rise, why = a.temperature_rise(p_abs, w.point.thickness)
+        if rise is None:
+            yield ctx.not_applicable(subject, requirement, f"no temperature estimate: {why}")
+            continue
+        k = a.materials[0].thermal_conductivity
+        t = w.point.thickness[0]
+        r = window.diameter / 2.0
+        q = p_abs / (math.pi * r * r * t)
+        msg = (f"ΔT = q R²/(4k) = P_abs/(4π k t) = {rise:.3g} K with P_abs {_w(p_abs)} ("
+               f"{w.value:.3g} of {_w(a.feed.average_power)} average, at {w.frequency / 1e9:.5g} "
+               f"GHz, {_point_text(a, w.point)}), q = {q:.3g} W/m³, R = {_mm(r)}, t = {_mm(t)}, "
+               f"k = {k:.4g} W/(m K), against {limit:.4g} K. Uniform heating: a beam peaked on "
+               "the axis heats the centre more, and k falls as the disc warms")
+        yield ctx.finding(subject, requirement, passed=rise <= limit, message=msg,
+                          measured=Quantity(rise, "K"), limit=Quantity(limit, "K"),
+                          margin=Quantity(limit - rise, "K"), worst_case=_where(a, w.frequency, w.point))

@@ -90,3 +90,23 @@ def test_every_rule_is_documented_and_every_option_has_a_sourced_default():
         assert "References" in rule.doc, rule.id
         for name in rule.options:
             assert policy.options[rule.id][name].source.strip(), (rule.id, name)
+
+
+def test_worst_breaks_rounding_ties_at_the_first_grid_point():
+    """A value that is the same at every current scale up to rounding (a multipole's own
+    field) names the first scale, whichever scale's last bit happens to be largest; a real
+    difference above the tie tolerance still wins. (Property of the envelope search, no
+    outside reference needed beyond IEEE rounding: 1e-15 relative is below any digit shown.)"""
+    from rfcheck.rules.envelope import TIE_RTOL, Grid
+
+    g = Grid(np.array([1e17, 1e18]).reshape(2, 1, 1), np.array([0.99, 1.0, 1.01]).reshape(1, 3, 1),
+             np.array([2.45e9]).reshape(1, 1, 1))
+    noisy = np.array([1.0, 1.0 + 2e-16, 1.0 + 4e-16]).reshape(1, 3, 1)
+    value, where = g.worst(noisy, "max")
+    assert where["current_scale"].value == 0.99 and value == 1.0
+    value, where = g.worst(2.0 - noisy, "min")
+    assert where["current_scale"].value == 0.99
+    real = np.array([1.0, 1.0, 1.0 + 100 * TIE_RTOL]).reshape(1, 3, 1)
+    assert g.worst(real, "max")[1]["current_scale"].value == 1.01
+    with_nan = np.array([1.0, np.nan, 2.0]).reshape(1, 3, 1)
+    assert g.worst(with_nan, "max")[1]["current_scale"].value == 1.0  # undefined is worst
