@@ -133,15 +133,114 @@ def _exit_for(result, strict: bool) -> Exit:
 @click.option("--html", "html_out", metavar="PATH", type=str,
               help="Write the same report as one self-contained HTML page for on-screen review.")
 @click.option("--strict", is_flag=True, help="Exit 1 on warnings too.")
+@click.option("--previous", "previous", type=click.Path(path_type=Path), metavar="OLD",
+              help="The previous revision (a spec or an archived rfcheck PDF): the results "
+                   "record its fingerprint and the report opens with the change summary.")
 def check(spec: Path, policy_path: Path | None, json_out: str | None, pdf_out: str | None,
-          html_out: str | None, strict: bool) -> None:
+          html_out: str | None, strict: bool, previous: Path | None = None) -> None:
     """Check a source specification SPEC against the rule catalogue."""
     from rfcheck.outputs import plan
 
     plan(_targets(json_out, pdf_out, html_out))
-    result = _evaluate(spec, policy_path)
+    if previous is None:
+        result = _evaluate(spec, policy_path)
+    else:
+        from rfcheck.changes import compare
+
+        result = _with_previous(compare(previous, spec, policy_path))
     _emit(result, json_out, pdf_out, quiet_table=False, html_out=html_out)
     raise SystemExit(_exit_for(result, strict))
+
+
+def _with_previous(changes):
+    """The new revision's run carrying the previous one's fingerprint, the change summary
+    and its input files (attached to the PDF)."""
+    from dataclasses import replace
+
+    old = changes.old
+    record = {**old.fingerprint(), "inputs": [i.to_json() for i in old.run.inputs],
+              "change": changes.summary()}
+    return replace(changes.new.run, previous=record, previous_inputs=old.run.inputs)
+
+
+@cli.command()
+@click.argument("old", type=click.Path(path_type=Path))
+@click.argument("new", type=click.Path(path_type=Path))
+@click.option("--policy", "policy_path", type=click.Path(path_type=Path),
+              help="Site policy for OLD and NEW where they are specs (an archived PDF uses the "
+                   "policy attached to it).")
+@click.option("--json", "json_out", metavar="PATH|-", help="Write the diff as JSON ('-' for stdout).")
+@click.option("--pdf", "pdf_out", metavar="PATH", type=str,
+              help="Write the change-control PDF: the change request, then the new review.")
+@click.option("--html", "html_out", metavar="PATH", type=str,
+              help="Write the same change-control report as one HTML page.")
+def diff(old: Path, new: Path, policy_path: Path | None, json_out: str | None,
+         pdf_out: str | None, html_out: str | None) -> None:
+    """Compare two revisions OLD and NEW (specs or archived rfcheck PDFs): what changed and
+    which verdicts moved. Exit 0 when no verdict moved and nothing worsened, 1 otherwise."""
+    from rfcheck.changes import compare
+    from rfcheck.outputs import commit, plan
+    from rfcheck.text import for_terminal
+
+    plan(_targets(json_out, pdf_out, html_out))
+    changes = compare(old, new, policy_path)
+    if policy_path is not None:
+        for side in (changes.old, changes.new):
+            if side.kind == "report":
+                click.echo(for_terminal(f"note: {side.origin} is an archived report: its "
+                                        "attached policy was used, not --policy"), err=True)
+    items = []
+    payload = None
+    if json_out is not None:
+        payload = (json.dumps(changes.to_json(), indent=2, allow_nan=False) + "\n").encode()
+        if json_out != "-":
+            items.append(("--json", Path(json_out), payload))
+    if pdf_out is not None or html_out is not None:
+        result = _with_previous(changes)
+        if pdf_out is not None:
+            from rfcheck.report.render import render_pdf
+
+            items.append(("--pdf", Path(pdf_out), render_pdf(result)))
+        if html_out is not None:
+            from rfcheck.report.render import render_screen_html
+
+            items.append(("--html", Path(html_out), render_screen_html(result)))
+    if items:
+        commit(items)
+        for opt, path, data in items:
+            what = {"--json": "JSON diff", "--pdf": "change-control PDF",
+                    "--html": "change-control HTML"}[opt]
+            click.echo(f"wrote {what} {for_terminal(str(path))} ({_size_text(len(data))})", err=True)
+    if json_out == "-":
+        sys.stdout.write(payload.decode())
+        sys.stdout.flush()
+    else:
+        click.echo(for_terminal(changes.text()))
+    if changes.exit_code:
+        moved = sorted({c.rule for c in changes.moved})
+        worse = sorted({c.rule for c in changes.worsened if not c.moved})
+        from rfcheck.views import verdict_word
+
+        parts = ([f"verdict {verdict_word(changes.old.run)} → {verdict_word(changes.new.run)}"]
+                 if changes.verdict_moved else [])
+        parts += [f"moved: {', '.join(moved)}"] if moved else []
+        parts += [f"margin worsened: {', '.join(worse)}"] if worse else []
+        click.echo(for_terminal("; ".join(parts)), err=True)
+    raise SystemExit(Exit.FAIL if changes.exit_code else Exit.PASS)
+
+
+@cli.command()
+@click.argument("report", type=click.Path(path_type=Path))
+def verify(report: Path) -> None:
+    """Prove an archived rfcheck PDF REPORT from its own attachments: fingerprints, rule set,
+    and a re-run at the recorded evaluation instant. Exit 0 match, 1 differ, 2 unreadable."""
+    from rfcheck.text import for_terminal
+    from rfcheck.verify import verify as verify_report
+
+    outcome = verify_report(report)
+    for line in outcome.lines():
+        click.echo(for_terminal(line))
+    raise SystemExit(Exit.PASS if outcome.matches else Exit.FAIL)
 
 
 @cli.command()
@@ -265,6 +364,7 @@ def main(argv: list[str] | None = None) -> int:
 def _main(argv: list[str] | None) -> int:
     from rfcheck.spec import InputError
     from rfcheck.text import for_terminal
+    from rfcheck.verify import ArchiveError
 
     try:
         cli.main(args=argv, prog_name="rfcheck", standalone_mode=False)
@@ -278,6 +378,9 @@ def _main(argv: list[str] | None) -> int:
         click.echo(f"{n} problem{'s' if n != 1 else ''} in the input; nothing was written.", err=True)
         return Exit.BAD_INPUT
     except UsageProblem as exc:
+        click.echo(f"error: {for_terminal(str(exc))}", err=True)
+        return Exit.BAD_INPUT
+    except ArchiveError as exc:  # an archived report that is not rfcheck's or is unreadable
         click.echo(f"error: {for_terminal(str(exc))}", err=True)
         return Exit.BAD_INPUT
     except click.exceptions.Abort:

@@ -107,6 +107,14 @@ class Run:
     unused_waivers: tuple[dict, ...] = ()
     #: every input file of the run, in INPUT_ROLES order (see :func:`input_files`)
     inputs: tuple[InputRecord, ...] = ()
+    #: the instant the waivers were evaluated at (ISO 8601 with offset, to the second): the
+    #: one wall-clock value of a run, kept because a waiver's expiry depends on it
+    evaluated_at: str = ""
+    #: the previous revision this run is reviewed against (`check --previous`): its role,
+    #: file, SHA-256 and the change summary (rfcheck.changes), or None
+    previous: dict | None = None
+    #: the previous revision's input files (attached to the PDF beside this run's own)
+    previous_inputs: tuple[InputRecord, ...] = field(default=(), repr=False, compare=False)
 
     def coverage_problems(self) -> tuple[str, ...]:
         """Why this run did not review the design, if it did not (empty when it did)."""
@@ -195,6 +203,8 @@ class Run:
                      "file": self.spec_file, "sha256": self.spec_sha256},
             "policy": {"name": self.policy_name, "sha256": self.policy_sha256},
             "inputs": [i.to_json() for i in self.inputs],
+            **({"evaluated_at": self.evaluated_at} if self.evaluated_at else {}),
+            **({"previous": self.previous} if self.previous else {}),
             "verdict": self.verdict,
             "verdict_reasons": list(self.verdict_reasons),
             "counts": self.counts(),
@@ -211,8 +221,12 @@ def sha256_text(text: str) -> str:
     return hashlib.sha256(text.encode("utf-8")).hexdigest()
 
 
-def run(loaded: LoadedSpec, policy: Policy) -> Run:
-    """Evaluate every selected rule on the loaded spec; a rule that raises becomes an error finding."""
+def run(loaded: LoadedSpec, policy: Policy, evaluated_at: dt.datetime | None = None) -> Run:
+    """Evaluate every selected rule on the loaded spec; a rule that raises becomes an error finding.
+
+    Waivers are evaluated at `evaluated_at` (an aware date-time; default: now, to the second),
+    which the run records (`Run.evaluated_at`), so that `rfcheck verify` can evaluate them at
+    the same instant years later."""
     model = loaded.model
     inputs = input_files(loaded, policy)  # before evaluating: as close to the load as can be
     ctx = Context(model, Envelope.of(model))
@@ -220,7 +234,11 @@ def run(loaded: LoadedSpec, policy: Policy) -> Run:
                                  if policy.selected(r.id)})
     findings: list[Finding] = []
     used: list[RuleUse] = []
-    now = dt.datetime.now().astimezone()  # one instant for every waiver expiry of the run
+    # one instant for every waiver expiry of the run, recorded to the second
+    now = (evaluated_at if evaluated_at is not None
+           else dt.datetime.now().astimezone()).replace(microsecond=0)
+    if now.tzinfo is None:
+        now = now.astimezone()
     matched: set[int] = set()  # waivers (by index) whose rule and subject met a finding
     applied: set[int] = set()  # waivers (by id) that waived a finding
     for r in all_rules():
@@ -265,7 +283,8 @@ def run(loaded: LoadedSpec, policy: Policy) -> Run:
         policy_sha256=policy.sha256, policy_texts=policy.texts, findings=tuple(findings),
         characteristics=chars, rules=tuple(used), model=model, context=ctx,
         rules_total=len(all_rules()),
-        unused_waivers=_unused_waivers(policy, used, matched, applied, now), inputs=inputs)
+        unused_waivers=_unused_waivers(policy, used, matched, applied, now), inputs=inputs,
+        evaluated_at=now.isoformat())
 
 
 def input_files(loaded: LoadedSpec, policy: Policy) -> tuple[InputRecord, ...]:

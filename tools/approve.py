@@ -23,6 +23,7 @@ OUT = ROOT / "tests" / "approved"
 #: (example spec, site policy or None) pairs that are approved
 CASES = (
     ("bench-ecr-reactor.toml", None),
+    ("bench-ecr-reactor-rev-d.toml", None),  # the change-control example: revision D of the bench
     ("min-b-ion-source.toml", None),
     ("min-b-ion-source.toml", "min-b-site-policy.toml"),
     ("icp-etch-source.toml", None),

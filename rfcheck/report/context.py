@@ -234,7 +234,22 @@ def build(run, figures: list[dict] | None = None) -> dict:
         "spec_text": run.spec_text,
         "policy_texts": [{"name": n, "text": t} for n, t in run.policy_texts],
         **_rule_appendix(run),
+        # the change-request page (templates/change-summary.html.j2), when a previous
+        # revision was given: rfcheck.changes.ChangeSet.summary()
+        "change": (getattr(run, "previous", None) or {}).get("change"),
     }
+
+
+def previous_attachments(run, taken: set[str]) -> list[tuple[InputRecord, str]]:
+    """The previous revision's input files (rfcheck diff, check --previous), each under
+    ``previous-`` and its own attachment name, distinct from the names in `taken`."""
+    out = []
+    for rec in getattr(run, "previous_inputs", ()) or ():
+        base = PurePath(rec.file).name or rec.role.replace(" ", "-")
+        name = (policy_attachment_name(base) if rec.role == "policy"
+                else _ATTACHMENT_PREFIX.get(rec.role, "") + base)
+        out.append((rec, _distinct("previous-" + name, taken)))
+    return out
 
 
 #: headings of a rule's docstring, in order (DEVELOPERS.md, "Adding a rule")

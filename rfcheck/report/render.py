@@ -119,7 +119,6 @@ def _fetcher():
 
 def render_pdf(run) -> bytes:
     """The PDF/A-3b review report as bytes (identical bytes for identical runs)."""
-    os.environ.setdefault("SOURCE_DATE_EPOCH", str(int(_EPOCH.timestamp())))
     import weasyprint
 
     html = render_html(run)
@@ -134,6 +133,13 @@ def render_pdf(run) -> bytes:
         string=results, name=report_context.RESULTS_ATTACHMENT,
         description="results (rfcheck-run/1 JSON)", created=_EPOCH, modified=_EPOCH,
         relationship="Data"))
+    taken = {n.casefold() for _, n in inputs} | {report_context.RESULTS_ATTACHMENT.casefold(),
+                                                  (default_policy or "").casefold()}
+    attachments += [
+        weasyprint.Attachment(string=rec.data, name=name, description=f"previous revision's "
+                              f"input file: {rec.role} ({rec.file})", created=_EPOCH,
+                              modified=_EPOCH, relationship="Source")
+        for rec, name in report_context.previous_attachments(run, taken)]
     if default_policy is not None:
         attachments.append(weasyprint.Attachment(
             string=run.policy_texts[0][1], name=default_policy,
@@ -141,5 +147,18 @@ def render_pdf(run) -> bytes:
             relationship="Source"))
     doc = weasyprint.HTML(string=html, base_url=templates_dir().as_uri() + "/",
                           url_fetcher=_fetcher())
-    return doc.write_pdf(pdf_variant="pdf/a-3b", attachments=attachments, pdf_identifier=True,
-                         custom_metadata=True)
+    # fontTools, which weasyprint subsets fonts with where HarfBuzz's subsetter is missing,
+    # stamps each subset's `head.modified` with SOURCE_DATE_EPOCH (else the present time):
+    # the embedded font streams changed with the variable. The report states no creation
+    # date, so the variable is pinned to the fixed epoch while the PDF is written and the
+    # caller's value is restored after: the bytes never depend on it.
+    saved = os.environ.get("SOURCE_DATE_EPOCH")
+    os.environ["SOURCE_DATE_EPOCH"] = str(int(_EPOCH.timestamp()))
+    try:
+        return doc.write_pdf(pdf_variant="pdf/a-3b", attachments=attachments,
+                             pdf_identifier=True, custom_metadata=True)
+    finally:
+        if saved is None:
+            del os.environ["SOURCE_DATE_EPOCH"]
+        else:
+            os.environ["SOURCE_DATE_EPOCH"] = saved
