@@ -119,7 +119,7 @@ def test_cover_says_pass_with_waivers_when_only_waivers_qualify_the_pass(tmp_pat
     result = run(load_spec(EXAMPLES / "min-b-ion-source.toml"), load_policy(pol))
     assert result.verdict == "pass" and result.counts()["waived"] == 4
     html = render_html(result)
-    cover = html[:html.index("<h2>Summary</h2>")]
+    cover = html[:html.index('<h2 id="s-summary">Summary</h2>')]
     assert '<div class="word">PASS WITH WAIVERS</div>' in cover
     assert cover.count("TEST-1") == 2 and "2099-12-31" in cover
     assert "verdict: PASS WITH WAIVERS" in text_table(result)
@@ -322,7 +322,7 @@ def test_longest_accepted_names_keep_the_verdict_on_the_cover(tmp_path):
 # ---------------------------------------------------------------- compact appendices
 def _appendix(pages, start: str, end: str | None) -> str:
     text = _flat(" ".join(pages))
-    a = text.index(start)
+    a = text.rindex(start)  # the heading, not the cover's contents list
     b = text.index(end, a) if end else len(text)
     return text[a:b]
 
@@ -356,8 +356,22 @@ def test_appendices_are_compact():
     is most of its pages; the rules and policy appendices fit in a few pages (they took 27
     pages when each rule's whole text was printed on a page of its own)."""
     _, _, pages = _case("bench")
-    first_appendix = next(i for i, p in enumerate(pages) if "Appendix A" in p)
+    first_appendix = next(i for i, p in enumerate(pages) if i > 0 and "Appendix A" in p)
     rules_and_policy = [i for i, p in enumerate(pages)
                         if i > first_appendix and "Appendix D" not in p]
     assert len(rules_and_policy) <= 6
     assert first_appendix >= len(pages) / 2
+
+
+def test_cover_lists_the_contents_with_the_page_of_each_part():
+    """The cover's contents list names every part of the body and the appendices, each with
+    the page its heading is on (read back from the PDF's text)."""
+    _, _, pages = _case("bench")
+    cover = _flat(pages[0])
+    for part in ("Summary", "Inputs at a glance", "Power budget", "Findings",
+                 "Characteristics", "Cautions", "Sign-off", "Appendix D — Input files"):
+        m = re.search(re.escape(part) + r"[ .]*?(\d+)(?!\d)", cover[cover.index("Contents"):])
+        assert m, part
+        page = int(m.group(1))
+        heading = "Appendix D — Input files" if part.startswith("Appendix") else part
+        assert heading in _flat(pages[page - 1]), (part, page)
