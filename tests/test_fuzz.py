@@ -48,7 +48,7 @@ def check(outcome: fz.Outcome) -> None:
 
 
 @FUZZ
-@given(seed=st.sampled_from(fz.SPEC_SEEDS[:2] + fz.SPEC_SEEDS[3:]), muts=mutations(fz.KINDS))
+@given(seed=st.sampled_from(fz.QUICK_SPEC_SEEDS), muts=mutations(fz.KINDS))
 def test_mutated_specs_keep_the_contract(tmp_path_factory, seed, muts):
     text = fz.mutate_text((fz.EXAMPLES / seed).read_text(encoding="utf-8"), muts)
     check(fz.run_case(fz.Case(text), tmp_path_factory.mktemp("spec"), BUDGET))

@@ -35,7 +35,13 @@ EXAMPLES = ROOT / "examples"
 
 #: seeds of spec cases (file name in examples/)
 SPEC_SEEDS = ("starter.toml", "bench-ecr-reactor.toml", "min-b-ion-source.toml",
-              "icp-etch-source.toml", "pm-ecr-thruster.toml")
+              "icp-etch-source.toml", "pm-ecr-thruster.toml", "ech-launcher-140ghz.toml",
+              "helicon-source.toml", "bench-ecr-reactor-rev-d.toml",
+              "dual-frequency-min-b.toml", "oblique-beam-reactor.toml")
+#: the seeds quick enough for the test suite's fuzz (the minimum-B trap, two feeds into it
+#: and the traced beam take seconds per case; the stand-alone tools/fuzz.py takes them all)
+QUICK_SPEC_SEEDS = tuple(s for s in SPEC_SEEDS if s not in (
+    "min-b-ion-source.toml", "dual-frequency-min-b.toml", "oblique-beam-reactor.toml"))
 POLICY_SEED = "min-b-site-policy.toml"
 
 #: mutation kinds on a parsed document

@@ -122,6 +122,7 @@ def axis_field_figure(run) -> dict | None:
 
 
 def all_figures(run) -> list[dict]:
+    from .figure_dispersion import dispersion_figure
     from .figure_fringe import fringe_figure
     from .figure_magnet import field_map_figure
     from .figure_path import cma_figure, launch_path_figure
@@ -133,7 +134,7 @@ def all_figures(run) -> list[dict]:
     has_magnet = any(not (type(src).__name__ == "UniformField" and src.b == 0.0)
                      for src in sources)
     for make in (axis_field_figure, field_map_figure, window_figure, launch_path_figure, cma_figure,
-                 fringe_figure):
+                 dispersion_figure, fringe_figure):
         if make in magnet_figures and not has_magnet:
             continue  # a source without a magnet (inductive): a flat zero field says nothing
         fig = make(run)
