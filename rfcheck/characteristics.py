@@ -55,7 +55,12 @@ def characteristics(ctx: Context) -> dict:
                                            float(critical_density(feed.frequency)), "1"),
             "average_power": _q(feed.average_power, "W"),
         }
-        if b_nom is not None:
+        if feed.absorption not in ECR_HARMONIC:
+            # an inductive or helicon drive has no electron-cyclotron resonance to place:
+            # its characteristics keep only what applies to it
+            for key in ("ecr_field", "resonance_field", "resonance_harmonic"):
+                entry.pop(key)
+        elif b_nom is not None:
             from rfcheck.magnet.geometry import resonance_crossings
 
             rel_tol = feed.frequency_tolerance / feed.frequency
@@ -63,6 +68,15 @@ def characteristics(ctx: Context) -> dict:
             entry["ecr_positions"] = {"value": [c.z for c in crossings], "unit": "m"}
             entry["ecr_gradients"] = {"value": [c.gradient for c in crossings], "unit": "T/m"}
             entry["ecr_zone_widths"] = {"value": [c.width for c in crossings], "unit": "m"}
+        if feed.absorption == "inductive" and feed.coil is not None:
+            from rfcheck.rules.inductive import eh_transition
+
+            try:  # the E-to-H transition density (inductive.h-mode judges the envelope by it)
+                n_eh, _ = eh_transition(ctx, feed)
+                entry["eh_transition_density"] = _q(float(n_eh), "m^-3")
+            except ValueError as exc:  # an unphysical coil: inductive.* report it
+                entry["eh_transition_density"] = {"value": None, "unit": "m^-3",
+                                                  "reason": str(exc)[:200]}
         out["feeds"][feed.id] = entry
     from rfcheck.rules.window_data import window_characteristics
 

@@ -223,6 +223,17 @@ class Magnet:
     sources: tuple[MagnetSource, ...]
     current_tolerance: float = 0.0
     trap: Literal["none", "mirror", "minimum-b"] = "none"
+    nozzle: Nozzle | None = None
+
+
+@dataclass(frozen=True)
+class Nozzle:
+    """A magnetic nozzle the design declares: the on-axis |B| must fall from its peak (the
+    throat) to the plane `exit_z` (m, on the axis; may lie beyond the chamber) by at least
+    `min_ratio` = B_throat / B_exit, without a second rise or a field reversal on the way."""
+
+    exit_z: float
+    min_ratio: float
 
 
 # --------------------------------------------------------------------------- RF feeds

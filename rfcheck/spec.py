@@ -293,6 +293,13 @@ class MeasuredSpec(_Strict):
     scales_with_current: bool = True
 
 
+class NozzleSpec(_Strict):
+    exit: Length = Field(description="z of the plane on the axis where the expansion is judged "
+                                     "(the thruster's exit plane or further downstream)")
+    min_ratio: float = Field(gt=1.0, le=1e4, description="the declared lowest B_throat / B_exit "
+                                                         "(the nozzle's expansion ratio)")
+
+
 class MagnetSpec(_Strict):
     current_tolerance: CurrentTolerance = 0.0
     trap: Literal["none", "mirror", "minimum-b"] = "none"
@@ -302,6 +309,8 @@ class MagnetSpec(_Strict):
     uniform: UniformSpec | None = None
     axis_table: MeasuredSpec | None = None
     field_map: MeasuredSpec | None = None
+    nozzle: NozzleSpec | None = Field(
+        None, description='a magnetic nozzle: { exit = "24 mm", min_ratio = 5 }')
 
 
 class LaunchBeamSpec(_Strict):
@@ -1122,7 +1131,9 @@ class _CrossCheck:
         chamber = m.Chamber(s.chamber.radius, s.chamber.z.start, s.chamber.z.end,
                             tuple(m.Landmark(lm.id, lm.z) for lm in s.chamber.landmarks),
                             s.chamber.end_walls.start, s.chamber.end_walls.end)
-        magnet = m.Magnet(tuple(sources), s.magnet.current_tolerance, s.magnet.trap)
+        nozzle = s.magnet.nozzle
+        magnet = m.Magnet(tuple(sources), s.magnet.current_tolerance, s.magnet.trap,
+                          m.Nozzle(nozzle.exit, nozzle.min_ratio) if nozzle else None)
         feeds = tuple(
             m.Feed(f.id, f.frequency, f.frequency_tolerance, f.power, f.duty_cycle,
                    f.max_reflected_power, f.line,

@@ -163,3 +163,19 @@ def test_eh_transition_by_hand(run):
     assert f.worst_case["pressure"].value == pytest.approx(4.0)
     assert f.measured.value == pytest.approx(1e17 / n_eh, rel=1e-12)
     assert f.status.value == "pass"  # 5.3 × n_EH against 1.5
+
+
+def test_characteristics_hold_what_applies_to_an_inductive_feed():
+    """The inductive feed's characteristics: the E-to-H transition density of the
+    inductive.h-mode finding, and no electron-cyclotron quantities (13.56 MHz heats no
+    resonance: B_ECR would be 0.48 mT, meaningless for the source)."""
+    from rfcheck.rules.policy import load_policy
+    from rfcheck.run import run as run_spec
+    from rfcheck.spec import load_spec
+
+    result = run_spec(load_spec(Path(__file__).resolve().parents[1] / "examples" / SPEC),
+                      load_policy(None))
+    (entry,) = result.characteristics["feeds"].values()
+    h_mode = next(f for f in result.findings if f.rule == "inductive.h-mode")
+    assert entry["eh_transition_density"]["value"] == h_mode.details["eh_transition_density"]
+    assert not {"ecr_field", "resonance_field", "ecr_positions"} & set(entry)

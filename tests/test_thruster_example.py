@@ -103,3 +103,46 @@ def test_the_example_warns_where_it_should_and_nothing_fails(run):
     # a single pass absorbs a few per cent of a linear launch in a 24 mm discharge, the coax
     # feedthrough is not declared as a window, and three inputs are left open
     assert warned == {"absorption.single-pass", "spec.feed-window", "spec.assumptions"}
+
+
+def test_nozzle_expansion_ratio_matches_the_closed_form_ring_field(run):
+    """The declared nozzle (exit plane 24 mm, ratio ≥ 5): B_throat is the back-plate field
+    254.5 mT and |B(24 mm)| = 23.57 mT from the closed-form field of the two axially
+    magnetised rings above: ratio 10.80."""
+    z = np.linspace(0.0, 0.024, 4801)
+    b = np.abs(axis_field(z))
+    expected = b.max() / abs(axis_field(0.024))
+    assert expected == pytest.approx(10.80, abs=0.01)
+    f = _one(run, "magnet.nozzle-expansion")
+    assert f.status.value == "pass"
+    assert f.measured.value == pytest.approx(expected, rel=1e-3)
+    assert f.limit.value == 5
+
+
+@pytest.mark.parametrize("exit_plane, verdict, words", [
+    ("30 mm", "fail", "changes sign"),        # beyond the null at 26.4 mm: a cusp
+    ("20 mm", "fail", "ratio 3.55"),          # closed form 254.5 / 71.6 mT: below 5
+    ("22 mm", "pass", "ratio"),               # upstream of the null, above 5
+])
+def test_nozzle_reversal_beyond_the_null_fails(tmp_path, exit_plane, verdict, words):
+    from rfcheck.rules.policy import load_policy
+    from rfcheck.run import run as run_spec
+    from rfcheck.spec import load_spec
+
+    text = SPEC.read_text(encoding="utf-8").replace('exit = "24 mm"', f'exit = "{exit_plane}"')
+    spec = tmp_path / "thruster.toml"
+    spec.write_text(text, encoding="utf-8")
+    result = run_spec(load_spec(spec), load_policy(None))
+    f = next(x for x in result.findings if x.rule == "magnet.nozzle-expansion")
+    assert f.status.value == verdict and words in f.message
+
+
+def test_nozzle_ratio_must_exceed_one(tmp_path):
+    from rfcheck.spec import InputError, load_spec
+
+    spec = tmp_path / "thruster.toml"
+    spec.write_text(SPEC.read_text(encoding="utf-8").replace("min_ratio = 5", "min_ratio = 0.5"),
+                    encoding="utf-8")
+    with pytest.raises(InputError) as err:
+        load_spec(spec)
+    assert "magnet.nozzle.min_ratio" in str(err.value)

@@ -21,6 +21,10 @@ FAMILY_TITLES = {
     "load": "Load and reflected power",
     "absorption": "Absorption",
     "exposure": "Exposure",
+    "inductive": "Inductive coupling",
+    "helicon": "Helicon waves",
+    "ech": "Electron-cyclotron heating",
+    "rays": "Rays of off-axis, oblique and beam launches",
 }
 #: name of the results attachment
 RESULTS_ATTACHMENT = "rfcheck-results.json"

@@ -378,3 +378,95 @@ def high_field_launch(ctx: Context, *, min_launch_margin: float,
         yield ctx.finding(f"{subject} launch path", req_path, passed=passed, message=msg,
                           measured=Quantity(worst_dip, "1"), limit=Quantity(max_field_dip, "1"),
                           margin=Quantity(margin, "1"), worst_case=where)
+
+
+#: samples of the on-axis field between the chamber start and the nozzle's exit plane
+NOZZLE_POINTS = 801
+
+
+@rule("magnet.nozzle-expansion", severity=Severity.ERROR,
+      summary="A declared magnetic nozzle: the on-axis |B| falls from the throat to the exit "
+              "plane by the declared ratio, without a second rise or a field reversal.",
+      applies="magnets that declare a nozzle (magnet.nozzle)")
+def nozzle_expansion(ctx: Context) -> Iterator[Finding]:
+    """What it checks
+    For a magnet that declares a nozzle { exit, min_ratio }: on the axis from the chamber
+    start to the exit plane z_exit, at every current scale of the envelope, the throat is
+    the largest |B| (its position z_t) and the expansion ratio is B_throat / |B(z_exit)|; it
+    must be at least min_ratio at the worst scale. From the throat to the exit |B| must fall
+    all the way: a rise on the way by more than 1 % of B_throat (a second mirror) or a
+    change of sign of B_z (a null and a reversed field: a cusp) fails the finding whatever
+    the ratio, since the exhaust would be reflected or would cross field lines there.
+
+    Why it matters
+    A magnetic nozzle converts the electrons' perpendicular energy into axial flow as the
+    field expands; the thrust and the detachment of the plume depend on how far the field
+    falls along the exhaust, which the design states as its ratio. A second maximum traps
+    and reflects part of the flow; a field reversal in the exhaust is a cusp, where the
+    plasma meets field lines going back to the magnet.
+
+    Equation
+    ratio = max_{z_start ≤ z ≤ z_exit} |B_z(0, z)| / |B_z(0, z_exit)| (on-axis field of the
+    magnet model); monotone fall from z_t to z_exit within 1 % of B_throat; no sign change of
+    B_z on (z_t, z_exit].
+
+    Options
+    None: the ratio is the design's own declared value (magnet.nozzle.min_ratio).
+
+    References
+    Common practice of magnetic-nozzle design; the expansion ratio as the figure of a
+    nozzle: M. Merino and E. Ahedo, Plasma Sources Sci. Technol. 23 (2014) 032001 (from
+    memory).
+    """
+    nozzle = ctx.model.magnet.nozzle
+    requirement = "B_throat / B_exit ≥ the declared ratio, falling all the way"
+    if nozzle is None:
+        yield ctx.not_applicable("magnet nozzle", requirement,
+                                 "the magnet declares no nozzle (magnet.nozzle)")
+        return
+    requirement = (f"B_throat / B_exit ≥ {nozzle.min_ratio:.4g} at z_exit = "
+                   f"{nozzle.exit_z * 1e3:.4g} mm, falling all the way")
+    chamber = ctx.model.chamber
+    if nozzle.exit_z <= chamber.z_start:
+        yield ctx.finding("magnet nozzle", requirement, passed=False,
+                          message=f"the exit plane z = {nozzle.exit_z * 1e3:.4g} mm lies at or "
+                                  f"before the chamber start ({chamber.z_start * 1e3:.4g} mm)")
+        return
+    scales = np.atleast_1d(np.asarray(ctx.envelope.current_scale, dtype=float)).reshape(-1)
+    z = np.linspace(chamber.z_start, nozzle.exit_z, NOZZLE_POINTS)
+    bz = np.atleast_2d(ctx.field_model.axis_field(z, scale=scales))  # (ns, nz), signed
+    ratios, notes = [], []
+    for i in range(len(scales)):
+        b = np.abs(bz[i])
+        k = int(np.argmax(b))
+        b_t, b_e = float(b[k]), float(b[-1])
+        ratio = b_t / b_e if b_e > 0 else np.inf
+        after = bz[i, k:]
+        reversed_ = bool(np.any(np.sign(after[1:]) * np.sign(after[0]) < 0))
+        # rise: the largest amount by which |B| climbs again after falling (downstream max
+        # above the running value); 0 for a monotone fall
+        rise = float(np.max(np.maximum.accumulate(b[k:][::-1])[::-1] - b[k:]))
+        bad = reversed_ or rise > 0.01 * b_t or k == len(b) - 1
+        ratios.append((ratio if not bad else -np.inf, ratio, k, b_t, b_e, reversed_, rise))
+    worst = min(range(len(ratios)), key=lambda j: ratios[j][0])
+    _, ratio, k, b_t, b_e, reversed_, rise = ratios[worst]
+    where = {"current_scale": Quantity(float(scales[worst]), "1")} if len(scales) > 1 else {}
+    where["position"] = Quantity(float(z[k]), "m")
+    head = (f"B_throat {b_t * 1e3:.4g} mT at z = {z[k] * 1e3:.4g} mm, |B| {b_e * 1e3:.4g} mT at "
+            f"the exit plane z = {nozzle.exit_z * 1e3:.4g} mm: ratio {ratio:.4g}")
+    if k == len(z) - 1:
+        notes.append("the field still rises at the exit plane: the throat is not upstream of it")
+    if reversed_:
+        notes.append("B_z changes sign between the throat and the exit plane (a null and a "
+                     "reversed field, a cusp in the exhaust)")
+    if rise > 0.01 * b_t:
+        notes.append(f"|B| rises again by {rise * 1e3:.3g} mT on the way (a second mirror)")
+    passed = not notes and ratio >= nozzle.min_ratio
+    scale_text = f" at current scale {scales[worst]:.4g}" if len(scales) > 1 else ""
+    message = (head + scale_text + ("; " + "; ".join(notes) if notes else "")
+               + f"; declared ratio {nozzle.min_ratio:.4g}; on-axis field of the magnet "
+                 "model, no iron")
+    yield ctx.finding("magnet nozzle", requirement, passed=passed, message=message,
+                      measured=Quantity(float(ratio), "1"),
+                      limit=Quantity(float(nozzle.min_ratio), "1"),
+                      margin=Quantity(float(ratio - nozzle.min_ratio), "1"), worst_case=where)
