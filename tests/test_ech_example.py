@@ -20,14 +20,14 @@ from __future__ import annotations
 
 import math
 import re
-import warnings
 from pathlib import Path
 
-import numpy as np
 import pytest
 from scipy.optimize import brentq
 
-from rfcheck.physics.constants import E_CHARGE, EPS0, ETA0, M_E, MU0, TWO_PI
+from conftest import one_finding, run_without_warnings, thick_solenoid_bz
+
+from rfcheck.physics.constants import E_CHARGE, EPS0, ETA0, M_E, TWO_PI
 
 ROOT = Path(__file__).resolve().parents[1]
 SPEC = ROOT / "examples" / "ech-launcher-140ghz.toml"
@@ -38,35 +38,21 @@ R1, R2, TURNS, AMPS = 0.200, 0.300, 6000, 380.0
 
 
 def solenoid_bz(z, scale=1.0):
-    j = TURNS * AMPS * scale / ((R2 - R1) * 0.300)
-    out = 0.0
-    for zc, length in COILS:
-        def term(u):
-            return u * np.log((R2 + np.hypot(R2, u)) / (R1 + np.hypot(R1, u)))
-        out = out + MU0 * j / 2 * (term(z - (zc - length / 2)) - term(z - (zc + length / 2)))
-    return out
+    return thick_solenoid_bz(z, [(zc, length, AMPS) for zc, length in COILS], R1, R2, TURNS,
+                             scale)
 
 
 @pytest.fixture(scope="module")
 def run():
-    from rfcheck.rules.policy import load_policy
-    from rfcheck.run import run as run_
-    from rfcheck.spec import load_spec
-
-    # under warnings-as-errors: odd input never prints a NumPy or library warning
-    # (DEVELOPERS.md, "Physics on odd input"); an error finding would show a rule that raised
-    with warnings.catch_warnings():
-        warnings.simplefilter("error")
-        return run_(load_spec(SPEC), load_policy(None))
+    # an error finding would show a rule that raised
+    return run_without_warnings(SPEC)
 
 
 def test_no_rule_raised_and_no_warning_was_printed(run):
     assert not [f for f in run.findings if f.status.value == "error"]
 
 
-def _one(run, rule, subject=None):
-    (f,) = [f for f in run.findings if f.rule == rule and (subject is None or f.subject == subject)]
-    return f
+_one = one_finding
 
 
 def test_resonance_field_and_cutoff_density_at_140_ghz():
