@@ -82,7 +82,7 @@ def _quantity(dimension: str, *, positive: bool = False, non_negative: bool = Fa
             raise ValueError(f"expected a {dim.name} ≥ 0, found '{value}'")
         if abs(x) > rng.high or (positive and x < rng.low):
             side = "above" if abs(x) > rng.high else "below"
-            raise ValueError(f"'{value}' is {side} the range rfcheck accepts for a {dim.name}, "
+            raise ValueError(f"'{value}' is {side} the range rfcheck accepts for {'an' if dim.name[:1] in 'aeiou' else 'a'} {dim.name}, "
                              f"{rng.shown} ({rng.reason}); a value outside it is usually a "
                              "unit slip")
         return x
