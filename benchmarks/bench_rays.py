@@ -27,9 +27,9 @@ BEAM = f"""
 import math, numpy as np
 from rfcheck.spec import load_spec
 from rfcheck.rules.context import Context
-from rfcheck.rules.envelope import Envelope
+from rfcheck.analysis.envelope import Envelope
 from rfcheck.rules import rays as R
-from rfcheck.rules.path import profile_shape, collision_frequency
+from rfcheck.analysis.launch_path import profile_shape, collision_frequency
 from rfcheck.physics.frequencies import ecr_field
 from rfcheck.physics.rays import trace_beam
 model = load_spec({str(SPEC)!r}).model

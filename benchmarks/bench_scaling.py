@@ -119,8 +119,9 @@ def layer_series(sizes, repeat: int):
 
 
 def twenty_layer_window(repeat: int) -> Row:
-    body = ("from rfcheck.rules.context import Context\nfrom rfcheck.rules.envelope import Envelope\n"
-            "from rfcheck.rules.window_data import window_analysis\n"
+    body = ("from rfcheck.rules.context import Context\n"
+            "from rfcheck.analysis.envelope import Envelope\n"
+            "from rfcheck.analysis.window import window_analysis\n"
             "model = b.with_layers(loaded.model, 20)\nts = []\n"
             f"for _ in range({repeat}):\n"
             "    ctx = Context(model, Envelope.of(model)); t0 = time.perf_counter()\n"

@@ -35,11 +35,11 @@ def characteristics(ctx: Context) -> dict:
         b_nom = None
         out["magnet"] = {"error": f"{type(exc).__name__}: {exc}"}
     if b_nom is not None:
-        from rfcheck.rules.magnet_data import magnet_characteristics
+        from rfcheck.analysis.magnet import magnet_characteristics
 
         for key, value in magnet_characteristics(ctx).items():
             out["magnet"].setdefault(key, value)
-    from rfcheck.rules.resonance import ECR_HARMONIC
+    from rfcheck.analysis.resonance import ECR_HARMONIC
 
     for feed in model.feeds:
         h = ECR_HARMONIC.get(feed.absorption, 1)
@@ -78,14 +78,14 @@ def characteristics(ctx: Context) -> dict:
                 entry["eh_transition_density"] = {"value": None, "unit": "m^-3",
                                                   "reason": str(exc)[:200]}
         out["feeds"][feed.id] = entry
-    from rfcheck.rules.window_data import window_characteristics
+    from rfcheck.analysis.window import window_characteristics
 
     out["windows"] = window_characteristics(ctx)
-    from rfcheck.rules.path_data import path_characteristics
+    from rfcheck.analysis.launch_path_data import path_characteristics
 
     out["paths"] = path_characteristics(ctx)
     from rfcheck.physics.exposure import SMALL_LEAK_DIRECTIVITY
-    from rfcheck.rules.exposure_data import exposure_characteristics
+    from rfcheck.analysis.exposure import exposure_characteristics
 
     directivity = ctx.option("exposure.leak-level", "leak_directivity")
     out["exposure"] = exposure_characteristics(ctx, directivity or SMALL_LEAK_DIRECTIVITY)

@@ -30,9 +30,9 @@ from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 from rfcheck import __version__
+from rfcheck.analysis.envelope import Envelope
 from rfcheck.findings import Finding, Status
 from rfcheck.rules.context import Context
-from rfcheck.rules.envelope import Envelope
 from rfcheck.rules.policy import Policy
 from rfcheck.rules.registry import all_rules
 from rfcheck.spec import LoadedSpec

@@ -67,7 +67,7 @@ def _windows(run, feed) -> list[tuple[str, float, float, str, str]]:
     """(window id, worst |Γ|², worst absorbed fraction, reflection note, absorption note) of
     each window on the feed,
     from the run's cached window analysis (the one the window rules and figure read)."""
-    from rfcheck.rules.window_data import window_analysis
+    from rfcheck.analysis.window import window_analysis
 
     out = []
     for w in run.model.windows:

@@ -37,7 +37,7 @@ def _hot_electrons(model: SourceModel) -> tuple[bool, str]:
 
 
 def _beryllia(model: SourceModel) -> tuple[bool, str]:
-    from rfcheck.rules.window_data import resolve_material
+    from rfcheck.analysis.window_material import resolve_material
 
     toxic = []
     for w in model.windows:

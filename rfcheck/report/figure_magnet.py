@@ -61,7 +61,7 @@ def field_map_figure(run) -> dict | None:
     if not (np.isfinite(upper.b).all() and np.isfinite(lower.b).all()):
         return None
     from rfcheck.physics.frequencies import ecr_field
-    from rfcheck.rules.resonance import ECR_HARMONIC
+    from rfcheck.analysis.resonance import ECR_HARMONIC
 
     r = np.concatenate([-lower.r[::-1], upper.r[1:]]) * 1e3
     b = np.concatenate([lower.b[::-1], upper.b[1:]], axis=0)

@@ -2,7 +2,7 @@
 the CMA diagram with the paths' trajectories (no verdicts drawn here).
 
 Both plot what the Run holds (``run.characteristics["paths"]``, written by
-rfcheck.rules.path_data.path_characteristics).
+rfcheck.analysis.launch_path_data.path_characteristics).
 """
 
 from __future__ import annotations

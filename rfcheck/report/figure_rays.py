@@ -38,7 +38,7 @@ def _corner_text(c) -> str:
 
 def _map_figure(run, study) -> dict:
     from rfcheck.physics.frequencies import critical_density, ecr_field
-    from rfcheck.rules.path import profile_shape
+    from rfcheck.analysis.launch_path import profile_shape
     from rfcheck.rules.rays import _field
 
     model, feed = run.model, study.feed

@@ -1,7 +1,7 @@
 """Report figure: reflection |Γ| of each window against frequency (no verdicts drawn here).
 
 The window numbers come from the same cached computation the window rules use
-(rfcheck.rules.window_data); the limit line is the max_gamma option the run applied.
+(rfcheck.analysis.window); the limit line is the max_gamma option the run applied.
 """
 
 from __future__ import annotations
@@ -41,7 +41,7 @@ def window_figure(run) -> dict | None:
     ctx, model = run.context, run.model
     if ctx is None or model is None or not model.windows:
         return None
-    from rfcheck.rules.window_data import window_analysis
+    from rfcheck.analysis.window import window_analysis
 
     analyses = []
     for w in model.windows:

@@ -74,7 +74,7 @@ def axis_field_figure(run) -> dict | None:
     except Exception:  # the rules already report a broken field model
         return None
     from rfcheck.physics.frequencies import ecr_field
-    from rfcheck.rules.resonance import ECR_HARMONIC
+    from rfcheck.analysis.resonance import ECR_HARMONIC
 
     plt = _mpl()
     fig, ax = plt.subplots(figsize=(6.6, 3.0))

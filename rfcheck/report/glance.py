@@ -60,7 +60,7 @@ def feed_rows(model) -> list[dict]:
 
 
 def window_rows(model) -> list[dict]:
-    from rfcheck.rules.window_material import resolve_material
+    from rfcheck.analysis.window_material import resolve_material
 
     rows = []
     for w in model.windows:
@@ -190,7 +190,7 @@ def cross_section(run) -> dict | None:
     permanent magnets as outlines, windows, launchers, landmarks and, where the run has a
     |B| map, each feed's resonance surface. Labels sit outside the drawn parts."""
     from rfcheck.physics.frequencies import ecr_field
-    from rfcheck.rules.resonance import ECR_HARMONIC
+    from rfcheck.analysis.resonance import ECR_HARMONIC
 
     from .figures import _mpl, _short, _svg
 

@@ -7,6 +7,9 @@ from collections.abc import Iterator
 
 import numpy as np
 
+from rfcheck.analysis.launch_path import LaunchPath, collision_frequency, launch_path, profile_shape
+from rfcheck.analysis.parts import mode_content
+from rfcheck.analysis.resonance import ECR_HARMONIC
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.physics.absorption import (collisional_regime, optical_depth_o1, optical_depth_o2,
                                         optical_depth_x2)
@@ -14,10 +17,7 @@ from rfcheck.physics.constants import TWO_PI
 from rfcheck.physics.frequencies import ecr_field
 
 from .context import Context
-from .parts import mode_content
-from .path import LaunchPath, collision_frequency, launch_path, profile_shape
 from .registry import Option, Range, rule
-from .resonance import ECR_HARMONIC
 
 _RESONANT = ("ecr", "ecr-harmonic-2", "uhr")
 _MULTIPASS = ("a low single pass is normal in a small device: it relies on multi-pass "

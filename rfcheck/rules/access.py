@@ -2,11 +2,12 @@
 overdense routes.
 
 Each part (the launched power's split into the plasma's characteristic waves,
-rfcheck.rules.parts) travels its own launch path (rfcheck.rules.path.launch_path), evaluated
-at the envelope corners (density min/max × current scale min/max × frequency min/max). The
-findings name the part; a part above its cutoff that relies on an overdense route is judged
-by access.overdense-route alone, and cutoff.o-mode defers to it by name, so no two findings
-on one part contradict each other.
+rfcheck.analysis.parts) travels its own launch path
+(rfcheck.analysis.launch_path.launch_path), evaluated at the envelope corners (density
+min/max × current scale min/max × frequency min/max). The findings name the part; a part
+above its cutoff that relies on an overdense route is judged by access.overdense-route
+alone, and cutoff.o-mode defers to it by name, so no two findings on one part contradict
+each other.
 """
 
 from __future__ import annotations
@@ -16,6 +17,10 @@ from collections.abc import Iterator
 
 import numpy as np
 
+from rfcheck.analysis.launch_path import NEAR_FIELD, Corner, LaunchPath, launch_path
+from rfcheck.analysis.parts import mode_content, part_subject
+from rfcheck.analysis.resonance import ECR_HARMONIC
+from rfcheck.analysis.window_material import resolve_material
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.model import REFLECTING_WALLS
 from rfcheck.physics.frequencies import critical_density
@@ -25,11 +30,7 @@ from rfcheck.units import format_fraction as _frac
 from rfcheck.units import format_si
 
 from .context import Context
-from .parts import mode_content, part_subject
-from .path import NEAR_FIELD, Corner, LaunchPath, launch_path
 from .registry import Option, Range, rule
-from .resonance import ECR_HARMONIC
-from .window_data import resolve_material
 
 #: absorption mechanisms whose target layer the launch path does not model
 _NOT_MODELLED = {"lh": "lower-hybrid accessibility depends on the parallel index N∥, which the "

@@ -1,8 +1,8 @@
 """What a rule receives: the model, the envelope and shared, cached physics results.
 
-Expensive things (the magnet's unit fields, the on-axis profile over the current scales) are
-computed once here and shared by every rule, so a run costs one field evaluation, not one per
-rule.
+Expensive things (the magnet's unit fields, the on-axis profile over the current scales, and
+every other analysis of rfcheck.analysis) are computed once per run, cached in `_cache` and
+shared by every rule, so a run costs one field evaluation, not one per rule.
 """
 
 from __future__ import annotations
@@ -11,11 +11,10 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from rfcheck.analysis import magnet_field
+from rfcheck.analysis.envelope import Envelope
 from rfcheck.findings import Finding, Quantity, Severity, Status
 from rfcheck.model import SourceModel
-
-from .envelope import Envelope
-
 
 
 @dataclass
@@ -38,60 +37,33 @@ class Context:
         """Option `name` of another rule, or None when that rule is not selected."""
         return self.selected_options.get(rule_id, {}).get(name)
 
-    # ---- shared physics
+    # ---- shared physics (rfcheck.analysis.magnet_field, cached in _cache)
 
     @property
     def field_model(self):
-        if "field" not in self._cache:
-            from rfcheck.magnet.sources import FieldModel
-
-            self._cache["field"] = FieldModel.for_chamber(self.model.magnet, self.model.chamber)
-        return self._cache["field"]
+        return magnet_field.field_model(self)
 
     @property
     def axis_z(self) -> np.ndarray:
         """Axial sample points over the chamber (m), those of the on-axis profiles."""
-        return self.axis_profiles()[0].z
+        return magnet_field.axis_z(self)
 
     def axis_field(self, scale: np.ndarray | float | None = None) -> np.ndarray:
-        """|B|(z) on the axis at `axis_z`, shape (n_scale, n_z), T.
-
-        With `scale` None, the envelope's current scales (from the cached profiles); a scale of
-        exactly 1 uses the cached nominal profile; other scales are evaluated on demand.
-        """
-        if scale is None:
-            return np.stack([p.b for p in self.axis_profiles()])
-        scales = np.atleast_1d(np.asarray(scale, dtype=float))
-        if scales.size == 1 and scales[0] == 1.0:
-            return self.nominal_profile().b[None, :]
-        b = self.field_model.axis_field(self.axis_z, scale=scales)
-        return np.abs(np.atleast_2d(b))
+        """|B|(z) on the axis at `axis_z`, shape (n_scale, n_z), T (see
+        :func:`rfcheck.analysis.magnet_field.axis_field`)."""
+        return magnet_field.axis_field(self, scale)
 
     def axis_profiles(self):
         """On-axis profiles (rfcheck.magnet.geometry.AxisProfile) for every envelope current scale."""
-        if "axis_profiles" not in self._cache:
-            from rfcheck.magnet.geometry import axis_profiles
-
-            self._cache["axis_profiles"] = axis_profiles(
-                self.field_model, self.model.chamber, self.envelope.current_scale)
-        return self._cache["axis_profiles"]
+        return magnet_field.axis_profiles(self)
 
     def nominal_profile(self):
         """The on-axis profile at current scale 1."""
-        if "nominal_profile" not in self._cache:
-            from rfcheck.magnet.geometry import axis_profile
-
-            self._cache["nominal_profile"] = axis_profile(self.field_model, self.model.chamber, 1.0)
-        return self._cache["nominal_profile"]
+        return magnet_field.nominal_profile(self)
 
     def trap_geometries(self):
         """Trap geometry (B_min, maxima, wall field, last closed |B|) per envelope current scale."""
-        if "trap" not in self._cache:
-            from rfcheck.magnet.geometry import trap_geometries
-
-            self._cache["trap"] = trap_geometries(self.field_model, self.model.chamber,
-                                                  self.envelope.current_scale)
-        return self._cache["trap"]
+        return magnet_field.trap_geometries(self)
 
     # ---- finding helpers
 

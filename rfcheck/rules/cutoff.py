@@ -6,13 +6,13 @@ from collections.abc import Iterator
 
 import numpy as np
 
+from rfcheck.analysis.launch_path import NEAR_FIELD, launch_path
+from rfcheck.analysis.parts import ModeContent, mode_content, part_subject
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.physics.frequencies import critical_density, ecr_field
 from rfcheck.units import format_si
 
 from .context import Context
-from .parts import ModeContent, mode_content, part_subject
-from .path import NEAR_FIELD, launch_path
 from .registry import Option, Range, rule
 
 #: parts whose cutoff this rule bounds: the O mode (P = 0, X = 1) and the L wave (L = 0,

@@ -17,6 +17,8 @@ from collections.abc import Iterator
 
 import numpy as np
 
+from rfcheck.analysis.launch_path import NEAR_FIELD, launch_path
+from rfcheck.analysis.resonance import ECR_HARMONIC
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.model import Feed
 from rfcheck.physics.absorption import (MAX_TEMPERATURE_EV, optical_depth_o1, optical_depth_o2,
@@ -28,9 +30,7 @@ from rfcheck.physics.waveguide import line_from_name
 from .absorption import _resonance_tables
 from .context import Context
 from .load import cold_gamma, plasma_return, running_gamma
-from .path import NEAR_FIELD, launch_path
 from .registry import Option, Range, rule
-from .resonance import ECR_HARMONIC
 
 __all__ = ["heating_scheme", "ech_feeds"]
 

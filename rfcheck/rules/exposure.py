@@ -8,11 +8,11 @@ from collections.abc import Iterator
 
 import numpy as np
 
+from rfcheck.analysis.exposure import leak_analysis, path_attenuation_db, path_cutoff
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.units import format_si
 
 from .context import Context
-from .exposure_data import leak_analysis, path_attenuation_db, path_cutoff
 from .registry import Option, Range, rule
 
 SUBJECT = "occupied distance"

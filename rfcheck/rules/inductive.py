@@ -13,6 +13,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from rfcheck.analysis.launch_path import collision_frequency
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.model import Feed
 from rfcheck.physics.constants import TWO_PI
@@ -22,7 +23,6 @@ from rfcheck.physics.inductive import (coil_ac_resistance, coil_drive, collision
 from rfcheck.physics.matching import Element, match_network
 
 from .context import Context
-from .path import collision_frequency
 from .registry import Option, Range, rule
 
 __all__ = ["InductiveEnvelope", "inductive_envelope"]
@@ -504,7 +504,7 @@ def eh_transition(ctx: Context, feed: Feed) -> tuple[float, dict[str, float]]:
     frequency, and the point where it is largest (cached per run)."""
     key = ("inductive-eh", feed.id)
     if key not in ctx._cache:
-        from .path import collision_frequency
+        from rfcheck.analysis.launch_path import collision_frequency
 
         env = inductive_envelope(ctx, feed)
         plasma = ctx.model.plasma

@@ -9,15 +9,15 @@ import math
 from collections.abc import Iterator
 from dataclasses import dataclass
 
+from rfcheck.analysis.launch_path import NEAR_FIELD, Corner, launch_path
+from rfcheck.analysis.parts import ModeContent, mode_content, worst_split
+from rfcheck.analysis.window import window_analysis
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.model import REFLECTING_WALLS, Feed
 from rfcheck.units import format_fraction as _pct
 
 from .context import Context
-from .parts import ModeContent, mode_content, worst_split
-from .path import NEAR_FIELD, Corner, launch_path
 from .registry import Option, Range, rule
-from .window_data import window_analysis
 
 __all__ = ["PlasmaReturn", "plasma_return", "running_gamma", "cold_gamma", "RUNNING", "IGNITION"]
 

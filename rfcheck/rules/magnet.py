@@ -12,12 +12,12 @@ from collections.abc import Iterator
 
 import numpy as np
 
+from rfcheck.analysis.resonance import ECR_HARMONIC
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.physics.frequencies import ecr_field
 
 from .context import Context
 from .registry import Option, Range, rule
-from .resonance import ECR_HARMONIC
 
 #: samples along the launch path (launcher to the far end of the chamber)
 PATH_POINTS = 1201

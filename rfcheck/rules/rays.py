@@ -4,7 +4,7 @@ they read (cached per feed on the Context; the report's ray figures read the sam
 A launch with ``x``/``y`` (off axis), ``tilt`` (oblique) or ``beam`` (a Gaussian beam) is
 traced in 3-D (:func:`rfcheck.physics.rays.trace_rays`) through the source's own field and
 density; every other launch is one ray on the axis, which the 1-D launch path
-(:mod:`rfcheck.rules.path`) already covers, and these rules say so (not applicable).
+(:mod:`rfcheck.analysis.launch_path`) already covers, and these rules say so (not applicable).
 
 The study, per feed, at each envelope corner of peak density (min, max) × current scale
 (min, max), at the feed's nominal frequency:
@@ -41,6 +41,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from rfcheck.analysis.launch_path import NEAR_FIELD, collision_frequency, profile_shape
+from rfcheck.analysis.resonance import ECR_HARMONIC
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.model import FieldMap, Feed
 from rfcheck.physics.absorption import optical_depth_o1, optical_depth_o2, optical_depth_x2
@@ -50,9 +52,7 @@ from rfcheck.physics.rays import _beam_rays as beam_rays
 from rfcheck.units import format_fraction as _frac
 
 from .context import Context
-from .path import NEAR_FIELD, collision_frequency, profile_shape
 from .registry import Option, Range, rule
-from .resonance import ECR_HARMONIC
 
 #: beam sampling: rings of rays round the central one (1 + 3 × 16 = 49 rays)
 BEAM_RINGS, BEAM_PER_RING = 3, 16

@@ -6,15 +6,12 @@ from collections.abc import Iterator
 
 import numpy as np
 
+from rfcheck.analysis.resonance import ECR_HARMONIC
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.physics.frequencies import ecr_field
 
 from .context import Context
 from .registry import Option, Range, rule
-
-#: harmonic number of the electron-cyclotron resonance each absorption mechanism relies on
-ECR_HARMONIC = {"ecr": 1, "ecr-harmonic-2": 2}
-
 
 @rule("resonance.ecr-in-chamber", severity=Severity.ERROR,
       summary="The ECR field of each ECR-heated feed is crossed on the axis inside the chamber.",

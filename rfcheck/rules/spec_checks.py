@@ -9,10 +9,10 @@ from __future__ import annotations
 
 from collections.abc import Iterator
 
+from rfcheck.analysis.launch_path import NEAR_FIELD, far_wall
 from rfcheck.findings import Finding, Quantity, Severity
 
 from .context import Context
-from .path import NEAR_FIELD, far_wall
 from .registry import rule
 
 
@@ -223,7 +223,7 @@ def assumptions(ctx: Context) -> Iterator[Finding]:
 
 def _material_assumptions(ctx: Context, feed) -> list[str]:
     """Window materials on this feed whose spread or quoted frequency is not declared."""
-    from .window_material import default_spread, resolve_material
+    from rfcheck.analysis.window_material import default_spread, resolve_material
 
     d = default_spread()
     out, seen = [], set()

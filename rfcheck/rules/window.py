@@ -1,6 +1,6 @@
 """Dielectric windows in each feed's line: reflection, reflection band and absorbed power.
 
-All three rules read one shared computation (rfcheck.rules.window_data.window_analysis): the
+All three rules read one shared computation (rfcheck.analysis.window.window_analysis): the
 window's worst cases over f ± tolerance and the spread of every layer (thickness tolerance,
 ε_r and tan δ ranges of its material, tan δ scaled to the feed frequency), found by the
 bounded search of rfcheck.physics.window_spread and cached on the Context.
@@ -11,6 +11,7 @@ from __future__ import annotations
 import math
 from collections.abc import Iterator
 
+from rfcheck.analysis.window import BAND_SPAN, WindowAnalysis, embedding_text, window_analysis
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.physics.rfpower import absorbed_power, reflected_power, return_loss_db, vswr
 
@@ -18,7 +19,6 @@ from .context import Context
 from .registry import Option, Range, rule
 from rfcheck.physics.window_spread import SpreadWorst, StackPoint
 
-from .window_data import BAND_SPAN, WindowAnalysis, embedding_text, window_analysis
 
 _NO_WAVE = "the line does not propagate over f ± tolerance (see line.waveguide-band)"
 

@@ -1,8 +1,9 @@
-"""The full-wave solver at the launch paths' phase step (rfcheck.rules.path.WAVE_PHASE_STEP,
-0.2 rad against the physics default 0.05) against the closed forms the solver is tested
-with at its default: the Airy linear layer and the Budden tunnelling layer (K. G. Budden,
-The Propagation of Radio Waves, Cambridge 1985, ch. 15-16 and 19; T. H. Stix, Waves in
-Plasmas, AIP 1992, ch. 13) and Poynting's theorem R + T + A = 1 (Budden §7)."""
+"""The full-wave solver at the launch paths' phase step
+(rfcheck.analysis.launch_path.WAVE_PHASE_STEP, 0.2 rad against the physics default 0.05)
+against the closed forms the solver is tested with at its default: the Airy linear layer and
+the Budden tunnelling layer (K. G. Budden, The Propagation of Radio Waves, Cambridge 1985,
+ch. 15-16 and 19; T. H. Stix, Waves in Plasmas, AIP 1992, ch. 13) and Poynting's theorem
+R + T + A = 1 (Budden §7)."""
 
 from __future__ import annotations
 
@@ -10,9 +11,9 @@ import numpy as np
 import pytest
 from scipy.special import airy
 
+from rfcheck.analysis.launch_path import WAVE_PHASE_STEP, WAVE_RTOL
 from rfcheck.physics.constants import C, TWO_PI
 from rfcheck.physics.fullwave import slab_reflection
-from rfcheck.rules.path import WAVE_PHASE_STEP, WAVE_RTOL
 
 F_UNIT = C / TWO_PI  # k0 = 1 m^-1: lengths in units of 1/k0
 

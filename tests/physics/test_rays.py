@@ -130,7 +130,7 @@ def test_on_axis_ray_in_the_bench_reactor_agrees_with_the_one_dimensional_resona
     # through the same field model and density profile must end at that resonance
     from rfcheck.magnet.geometry import axis_profile, resonance_crossings
     from rfcheck.magnet.sources import FieldModel
-    from rfcheck.rules.path import profile_shape
+    from rfcheck.analysis.launch_path import profile_shape
 
     model = base_model
     chamber = model.chamber

@@ -12,11 +12,11 @@ from pathlib import Path
 
 import numpy as np
 
+from rfcheck.analysis.envelope import Envelope
 from rfcheck.model import (AxisTable, Chamber, DensityProfile, Feed, IonShare, Launch, Magnet,
                            NeutralGas, Plasma, SourceInfo, SourceModel, Span, UniformField)
 from rfcheck.physics.constants import C, TWO_PI
 from rfcheck.rules.context import Context
-from rfcheck.rules.envelope import Envelope
 from rfcheck.rules.policy import load_policy
 from rfcheck.rules.registry import get_rule
 from rfcheck.spec import load_spec

@@ -6,9 +6,9 @@ import numpy as np
 import pytest
 
 from conftest import DEMO
+from rfcheck.analysis.envelope import Envelope
 from rfcheck.findings import Quantity, Severity, Status, compare
 from rfcheck.rules import registry
-from rfcheck.rules.envelope import Envelope
 from rfcheck.rules.policy import load_policy
 from rfcheck.run import run
 from rfcheck.spec import load_spec
@@ -97,7 +97,7 @@ def test_worst_breaks_rounding_ties_at_the_first_grid_point():
     field) names the first scale, whichever scale's last bit happens to be largest; a real
     difference above the tie tolerance still wins. (Property of the envelope search, no
     outside reference needed beyond IEEE rounding: 1e-15 relative is below any digit shown.)"""
-    from rfcheck.rules.envelope import TIE_RTOL, Grid
+    from rfcheck.analysis.envelope import TIE_RTOL, Grid
 
     g = Grid(np.array([1e17, 1e18]).reshape(2, 1, 1), np.array([0.99, 1.0, 1.01]).reshape(1, 3, 1),
              np.array([2.45e9]).reshape(1, 1, 1))

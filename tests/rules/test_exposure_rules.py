@@ -21,7 +21,7 @@ from rfcheck.model import (ControlledArea, Exposure, Leak, LeakPath, SurveyReadi
 from rfcheck.physics.constants import C
 from rfcheck.physics.exposure import reference_level
 from rfcheck.rules.context import Context
-from rfcheck.rules.envelope import Envelope
+from rfcheck.analysis.envelope import Envelope
 from rfcheck.rules.registry import get_rule
 
 ICNIRP = shipped_table("icnirp-2020-occupational")

@@ -14,10 +14,10 @@ from pathlib import Path
 import numpy as np
 import pytest
 
+from rfcheck.analysis.envelope import Envelope
 from rfcheck.findings import Status
 from rfcheck.model import MatchingElement, MatchingNetwork
 from rfcheck.rules.context import Context
-from rfcheck.rules.envelope import Envelope
 from rfcheck.rules.registry import get_rule
 
 ROOT = Path(__file__).resolve().parents[2]

@@ -15,11 +15,11 @@ from pathlib import Path
 
 import pytest
 
+from rfcheck.analysis.envelope import Envelope
 from rfcheck.findings import Status
 from rfcheck.model import Feed, Launch, Material, Window, WindowLayer
 from rfcheck.physics.constants import C, ETA0
 from rfcheck.rules.context import Context
-from rfcheck.rules.envelope import Envelope
 from rfcheck.rules.registry import get_rule
 
 DEMO = Path(__file__).resolve().parents[2] / "examples" / "bench-ecr-reactor.toml"

@@ -26,14 +26,14 @@ import pytest
 from launch_models import (F0, context, demo_model, evaluate, k0, linear_field, model, one,
                            step_reflection, uniform_field)
 
+from rfcheck.analysis.launch_path_data import path_characteristics
+from rfcheck.analysis.window import window_analysis
 from rfcheck.findings import Status
 from rfcheck.model import DensityProfile, NeutralGas, Span
 from rfcheck.physics.collisions import (electron_ion_collision_frequency,
                                         electron_neutral_collision_frequency)
 from rfcheck.physics.constants import AMU, E_CHARGE, EPS0, M_E, TWO_PI
 from rfcheck.physics.frequencies import ecr_field
-from rfcheck.rules.path_data import path_characteristics
-from rfcheck.rules.window_data import window_analysis
 
 N_C = 1.240443e-2 * F0**2  # NRL Plasma Formulary (2019) p. 28, m^-3
 M_AR = 39.948 * AMU  # IUPAC standard atomic weight of Ar

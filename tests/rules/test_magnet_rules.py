@@ -32,12 +32,12 @@ import numpy as np
 import pytest
 from scipy.optimize import brentq, minimize_scalar
 
+from rfcheck.analysis.envelope import Envelope
 from rfcheck.findings import Status
 from rfcheck.model import (AxisTable, Chamber, Coil, Feed, IonShare, Landmark, Launch, Magnet,
                            Multipole, Window, WindowLayer)
 from rfcheck.physics.constants import E_CHARGE, M_E, M_P, MU0, TWO_PI
 from rfcheck.rules.context import Context
-from rfcheck.rules.envelope import Envelope
 from rfcheck.rules.registry import get_rule
 from rfcheck.spec import load_spec
 
@@ -286,7 +286,7 @@ def test_ecr_closed_on_hand_built_trap(trap_ctx, policy, fid, status, side):
 
 
 def test_magnet_characteristics_of_hand_built_trap(trap_ctx):
-    from rfcheck.rules.magnet_data import magnet_characteristics
+    from rfcheck.analysis.magnet import magnet_characteristics
 
     out = magnet_characteristics(trap_ctx)
     json.dumps(out, allow_nan=False)  # JSON-ready: no NaN or infinity

@@ -20,10 +20,10 @@ import pytest
 from launch_models import (F0, context, demo_model, evaluate, linear_field, model, one,
                            uniform_field)
 
+from rfcheck.analysis.parts import mode_content
 from rfcheck.findings import Status
 from rfcheck.model import DensityProfile, Launch, ShortRating, Span
 from rfcheck.physics.frequencies import ecr_field
-from rfcheck.rules.parts import mode_content
 
 N_C = 1.240443e-2 * F0**2  # NRL Plasma Formulary (2019) p. 28, m^-3
 

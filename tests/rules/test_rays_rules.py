@@ -9,10 +9,10 @@ from dataclasses import replace
 import numpy as np
 import pytest
 
+from rfcheck.analysis.launch_path import Corner, collision_frequency, launch_path, profile_shape
 from rfcheck.physics.access import mode_n2
 from rfcheck.physics.constants import C
 from rfcheck.physics.frequencies import ecr_field
-from rfcheck.rules.path import Corner, collision_frequency, launch_path, profile_shape
 from rfcheck.rules.policy import load_policy
 from rfcheck.rules.rays import LAYER_BAND, _study, ray_study
 from rfcheck.run import run

@@ -23,13 +23,13 @@ from types import SimpleNamespace
 
 import pytest
 
+from rfcheck.analysis.envelope import Envelope
+from rfcheck.analysis.window import window_analysis, window_characteristics
 from rfcheck.findings import Status
 from rfcheck.model import Feed, Launch, Material, Window, WindowLayer
 from rfcheck.physics.constants import C
 from rfcheck.rules.context import Context
-from rfcheck.rules.envelope import Envelope
 from rfcheck.rules.registry import get_rule
-from rfcheck.rules.window_data import window_analysis, window_characteristics
 from rfcheck.spec import load_spec
 
 DEMO = Path(__file__).resolve().parents[2] / "examples" / "bench-ecr-reactor.toml"
@@ -412,7 +412,7 @@ def test_twenty_layer_window_analysis_is_bounded(base_model, policy):
     # layers; this one evaluates at most ANALYSIS_COMBINATIONS stacks (assert the count)
     import time
 
-    from rfcheck.rules.window_data import ANALYSIS_COMBINATIONS
+    from rfcheck.analysis.window import ANALYSIS_COMBINATIONS
 
     layers = [WindowLayer("fused-silica" if i % 2 else "ptfe", 1.6e-3, 0.02e-3) for i in range(20)]
     model = make_model(base_model, make_feed(tol=25e6), layers, rating=50.0)

@@ -3,7 +3,7 @@ report figure: each window's worst cases over its feed's frequency band and the 
 every layer (thickness ± tolerance, ε_r and tan δ over their ranges), computed once per run
 and cached on the Context.
 
-Materials and their spreads come from :mod:`rfcheck.rules.window_material` (library, spec,
+Materials and their spreads come from :mod:`rfcheck.analysis.window_material` (library, spec,
 or the stated default spread; loss tangents scaled to the feed's frequency). The searches
 are :func:`rfcheck.physics.window_spread.worst_over_spread` (|Γ| and the absorbed fraction)
 and :func:`~rfcheck.physics.window_spread.band_over_spread` (the reflection band): bounded

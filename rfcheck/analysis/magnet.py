@@ -1,9 +1,9 @@
 """Characteristic numbers of the magnet for the JSON `characteristics.magnet` (no verdicts).
 
-Everything is read from the Context's shared caches (the on-axis field and the trap geometry
-over the envelope's current scales), so the characteristics cost no extra field evaluation
-beyond what the rules already use. Values are JSON-ready: {"value", "unit"}, never NaN or
-infinity (None with a "reason" instead).
+Everything is read from the run's shared caches (:mod:`rfcheck.analysis.magnet_field`: the
+on-axis field and the trap geometry over the envelope's current scales), so the
+characteristics cost no extra field evaluation beyond what the rules already use. Values are
+JSON-ready: {"value", "unit"}, never NaN or infinity (None with a "reason" instead).
 
 Conventions are those of rfcheck.magnet.geometry: injection side = z_start side, B_min is
 the smallest |B| in the plasma volume (possibly off axis), B_rad ("radial_wall_field") the
@@ -21,7 +21,8 @@ import numpy as np
 from rfcheck.findings import quantity_json as _q
 from rfcheck.physics.frequencies import ecr_field
 
-from .context import Context
+from . import magnet_field
+from .state import RunState
 
 __all__ = ["magnet_characteristics"]
 
@@ -33,11 +34,11 @@ def _range(values, unit: str) -> dict:
     return {"value": [float(v.min()), float(v.max())], "unit": unit}
 
 
-def _nominal_index(ctx: Context) -> int:
+def _nominal_index(ctx: RunState) -> int:
     return int(np.argmin(np.abs(np.asarray(ctx.envelope.current_scale) - 1.0)))
 
 
-def magnet_characteristics(ctx: Context) -> dict:
+def magnet_characteristics(ctx: RunState) -> dict:
     """Axis extrema, trap geometry, mirror ratio and (minimum-B traps) the ratios over B_ECR.
 
     Never raises for a field that cannot be evaluated: the entry then carries a "reason".
@@ -45,10 +46,10 @@ def magnet_characteristics(ctx: Context) -> dict:
     model = ctx.model
     out: dict = {"trap": model.magnet.trap}
     try:
-        z = ctx.axis_z
-        b_axis = ctx.axis_field(1.0)[0]
+        z = magnet_field.axis_z(ctx)
+        b_axis = magnet_field.axis_field(ctx, 1.0)[0]
         out["axis_field_max_position"] = _q(float(z[int(np.argmax(b_axis))]), "m")
-        traps = ctx.trap_geometries()
+        traps = magnet_field.trap_geometries(ctx)
     except ValueError as exc:  # FieldUndefinedError and malformed measured data
         out["geometry"] = {"value": None, "unit": "", "reason": str(exc)}
         return out
@@ -110,7 +111,7 @@ def _values(a, digits: int = 6) -> list:
     return np.vectorize(lambda x: float(f"{x:.{digits}g}"), otypes=[float])(a).tolist()
 
 
-def field_arrays(ctx: Context, *, axis_points: int = 201, wall_z: int = 41, wall_phi: int = 24,
+def field_arrays(ctx: RunState, *, axis_points: int = 201, wall_z: int = 41, wall_phi: int = 24,
                  map_r: int = 16, map_z: int = 61) -> dict:
     """The nominal field as arrays for figures and other tools: on-axis |B|(z), |B| on the wall
     over z × azimuth (azimuths over one symmetry period of |B|, see
@@ -118,8 +119,8 @@ def field_arrays(ctx: Context, *, axis_points: int = 201, wall_z: int = 41, wall
     scale 1)."""
     from rfcheck.magnet.geometry import GeometryGrid, rz_field, wall_field
 
-    chamber, fm = ctx.model.chamber, ctx.field_model
-    profile = ctx.nominal_profile()
+    chamber, fm = ctx.model.chamber, magnet_field.field_model(ctx)
+    profile = magnet_field.nominal_profile(ctx)
     step = max(1, (len(profile.z) - 1) // (axis_points - 1))
     out = {"axis_profile": {"z": {"value": _values(profile.z[::step]), "unit": "m"},
                             "b": {"value": _values(profile.b[::step]), "unit": "T"}}}

@@ -1,6 +1,6 @@
 """Exposure analyses shared by the exposure rules, the characteristics and the report: the
 leak estimate at the occupied distance (survey or derived) and the static-field lines.
-Pure functions of the model and the envelope, cached on the Context; no verdicts here.
+Pure functions of the model and the envelope, cached per run; no verdicts here.
 
 Leak estimate, per feed at each of its envelope frequencies, worst frequency kept:
 
@@ -35,7 +35,7 @@ from rfcheck.physics.exposure import (
     reference_level,
 )
 
-from .context import Context
+from .state import RunState
 
 __all__ = ["Contribution", "FeedExposure", "LeakAnalysis", "leak_analysis",
            "path_attenuation_db", "path_cutoff", "exposure_characteristics"]
@@ -138,7 +138,7 @@ def _worst_level(table, freqs) -> list[ReferenceLevel]:
     return [reference_level(table, float(f)) for f in freqs]
 
 
-def _derived(model: SourceModel, ctx: Context, directivity: float):
+def _derived(model: SourceModel, ctx: RunState, directivity: float):
     exp = model.exposure
     d = exp.occupied_distance
     out, outside = [], []
@@ -165,7 +165,7 @@ def _derived(model: SourceModel, ctx: Context, directivity: float):
     return out, outside
 
 
-def _survey(model: SourceModel, ctx: Context):
+def _survey(model: SourceModel, ctx: RunState):
     exp = model.exposure
     d = exp.occupied_distance
     feeds = {f.id: f for f in model.feeds}
@@ -213,7 +213,7 @@ def _survey(model: SourceModel, ctx: Context):
     return out, sorted(set(outside)), notes
 
 
-def leak_analysis(ctx: Context, directivity: float) -> LeakAnalysis | None:
+def leak_analysis(ctx: RunState, directivity: float) -> LeakAnalysis | None:
     """The leak estimate of the model's [exposure] section (None without a declared leak)."""
     exp = ctx.model.exposure
     if exp is None or exp.leak is None:
@@ -231,7 +231,7 @@ def leak_analysis(ctx: Context, directivity: float) -> LeakAnalysis | None:
     return ctx._cache[key]
 
 
-def exposure_characteristics(ctx: Context, directivity: float) -> dict:
+def exposure_characteristics(ctx: RunState, directivity: float) -> dict:
     """JSON-ready numbers of the leak estimate (no verdicts)."""
     a = leak_analysis(ctx, directivity)
     if a is None:

@@ -12,7 +12,7 @@ import numpy as np
 from rfcheck.findings import quantity_json as _q
 from rfcheck.physics.frequencies import critical_density, ecr_field
 
-from .path import NEAR_FIELD, Corner, LaunchPath, launch_path
+from .launch_path import NEAR_FIELD, Corner, LaunchPath, launch_path
 
 __all__ = ["FIGURE_POINTS", "path_characteristics"]
 

@@ -35,7 +35,7 @@ from rfcheck.physics.frequencies import ecr_field
 from rfcheck.physics.polarisation import (PARTNER, characteristic_polarisations, launched_jones,
                                           mode_fractions)
 
-from .path import NEAR_FIELD, Corner, launch_path
+from .launch_path import NEAR_FIELD, Corner, launch_path
 
 __all__ = ["Part", "ModeContent", "mode_content", "part_subject", "worst_split"]
 

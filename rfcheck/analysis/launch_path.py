@@ -1,5 +1,5 @@
 """The launch path of each part of a feed's launched power (its split into the plasma's
-characteristic waves, rfcheck.rules.parts), shared by the cutoff, access.*, load.* and
+characteristic waves, rfcheck.analysis.parts), shared by the cutoff, access.*, load.* and
 absorption.* rules, the characteristics and the report figures; built once per feed and part
 and cached on the Context.
 
@@ -11,7 +11,7 @@ z = z_launch + direction · s.
 Along the path:
 
 * |B|(s) on the axis for every current scale of the envelope, interpolated from the
-  Context's cached on-axis field (:meth:`rfcheck.rules.context.Context.axis_field`);
+  run's cached on-axis field (:func:`rfcheck.analysis.magnet_field.axis_field`);
 * n_e(s) = n_peak · shape(z), the density profile of the spec normalised to a peak of 1
   (flat; parabolic (1 − (2u − 1)²)^exponent, u = (z − z_start)/L; a linear ramp from 0 at
   each end wall to 1 over ``edge_length``; a table normalised to its maximum);
@@ -56,6 +56,8 @@ from rfcheck.physics.constants import TWO_PI
 from rfcheck.physics.frequencies import critical_density, ecr_field
 from rfcheck.physics.fullwave import SlabResponse, mirror_return, slab_reflection
 from rfcheck.physics.species import ELECTRON, ion_mixture
+
+from . import magnet_field
 
 __all__ = ["PATH_POINTS", "NU_FLOOR", "NEAR_FIELD", "Corner", "Reach", "PlasmaLoad",
            "LaunchPath", "launch_path", "profile_shape", "collision_frequency", "launched_wave",
@@ -247,8 +249,9 @@ class LaunchPath:
             self.s = s
             self.z = self.z0 + self.direction * s
             self.shape = profile_shape(plasma.profile, chamber, self.z)
-            b_axis = ctx.axis_field()  # (n_scale, n_axis), |B|
-            self.b = np.stack([np.interp(self.z, ctx.axis_z, row) for row in b_axis])
+            b_axis = magnet_field.axis_field(ctx)  # (n_scale, n_axis), |B|
+            z_axis = magnet_field.axis_z(ctx)
+            self.b = np.stack([np.interp(self.z, z_axis, row) for row in b_axis])
             if not np.all(np.isfinite(self.b)):
                 raise ValueError("the magnet field is undefined on the launch path")
         self._access: dict = {}
