@@ -3,7 +3,7 @@
 Both sides run in a fresh interpreter (same start-up, same imports of the field engine),
 alternating, in the same run: the reference is ``rfcheck check
 examples/min-b-ion-source.toml --json FILE``; the candidate loads the same spec, builds the
-ray study's field grid (rfcheck.rules.rays.ray_grid) and traces one beam of 1 + 3 × 16 = 49
+ray study's field grid (rfcheck.analysis.rays.ray_grid) and traces one beam of 1 + 3 × 16 = 49
 rays (waist 10 mm at the injection plug, 0.05 rad off the axis, the R branch at the peak
 density and nominal current, the rules' tolerance and budget) to the ECR layer. The ratio of
 the medians is printed (target ≤ 2); CPU times are reported beside the wall times.
@@ -28,7 +28,7 @@ import math, numpy as np
 from rfcheck.spec import load_spec
 from rfcheck.rules.context import Context
 from rfcheck.analysis.envelope import Envelope
-from rfcheck.rules import rays as R
+from rfcheck.analysis import rays as R
 from rfcheck.analysis.launch_path import profile_shape, collision_frequency
 from rfcheck.physics.frequencies import ecr_field
 from rfcheck.physics.rays import trace_beam
@@ -40,7 +40,7 @@ n_peak = plasma.density.max
 nu = float(collision_frequency(plasma, n_peak, plasma.electron_temperature.min,
                                plasma.neutral.pressure.min))
 beam = trace_beam(feed.frequency, [0.0, 0.0, ch.z_start], [math.sin(0.05), 0.0, math.cos(0.05)],
-                  0.01, "R", R._field(grid, 1.0),
+                  0.01, "R", R.scaled_field(grid, 1.0),
                   lambda p: n_peak * profile_shape(plasma.profile, ch, p[:, 2]),
                   rings=R.BEAM_RINGS, per_ring=R.BEAM_PER_RING,
                   max_length=R.LENGTH_FACTOR * ch.length, ions=plasma.ions,

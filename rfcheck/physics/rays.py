@@ -173,7 +173,7 @@ class GridField:
     model of many source elements (a segmented multipole) costs about 20 µs per point and
     a few ms per call, the spline a few µs per call and point. The interpolation error of a
     cubic spline falls as (spacing / L)^4 with L the field's scale length: checked against a
-    dipole's closed-form field in the tests; for the grid of :mod:`rfcheck.rules.rays` on the
+    dipole's closed-form field in the tests; for the grid of :mod:`rfcheck.analysis.rays` on the
     minimum-B example see DEVELOPERS.md "Rays" (1e-4 near the axis, a few % at the wall near
     the ends of the segmented hexapole).
     """

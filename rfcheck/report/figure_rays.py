@@ -1,4 +1,4 @@
-"""Report figures of the ray study (rfcheck.rules.rays): the rays over the |B| map in the r–z
+"""Report figures of the ray study (rfcheck.analysis.rays): the rays over the |B| map in the r–z
 plane of the launch, with the resonance and cutoff surfaces and the deposition points; a
 cross-section at the layer; the deposition profile along z. No verdicts here: the figures draw the study the rays.* rules
 judged (cached on the run's Context)."""
@@ -39,7 +39,7 @@ def _corner_text(c) -> str:
 def _map_figure(run, study) -> dict:
     from rfcheck.physics.frequencies import critical_density, ecr_field
     from rfcheck.analysis.launch_path import profile_shape
-    from rfcheck.rules.rays import _field
+    from rfcheck.analysis.rays import scaled_field
 
     model, feed = run.model, study.feed
     ch, launch = model.chamber, feed.launch
@@ -49,7 +49,7 @@ def _map_figure(run, study) -> dict:
     z = np.linspace(ch.z_start, ch.z_end, MAP_Z)
     rr, zz = np.meshgrid(r, z, indexing="ij")
     pts = np.stack([rr * math.cos(phi), rr * math.sin(phi), zz], axis=-1).reshape(-1, 3)
-    bmag = np.linalg.norm(_field(study.grid, corner.scale)(pts), axis=1).reshape(rr.shape)
+    bmag = np.linalg.norm(scaled_field(study.grid, corner.scale)(pts), axis=1).reshape(rr.shape)
     f = feed.frequency
     x = corner.density * profile_shape(model.plasma.profile, ch, zz) / float(critical_density(f))
     y = bmag / float(ecr_field(f))
@@ -94,7 +94,7 @@ def _map_figure(run, study) -> dict:
 def _section_figure(run, study) -> dict | None:
     """|B| across the chamber (x–y) at the z where the densest corner's rays meet the layer
     (power-weighted mean), with the layer curve and the layer points of every corner."""
-    from rfcheck.rules.rays import _field
+    from rfcheck.analysis.rays import scaled_field
 
     ch, feed = run.model.chamber, study.feed
     corner = max(study.corners, key=lambda k: k.density)
@@ -106,7 +106,7 @@ def _section_figure(run, study) -> dict | None:
     u = np.linspace(-ch.radius, ch.radius, MAP_R)
     xx, yy = np.meshgrid(u, u, indexing="ij")
     pts = np.stack([xx, yy, np.full(xx.shape, z0)], axis=-1).reshape(-1, 3)
-    bmag = np.linalg.norm(_field(study.grid, corner.scale)(pts), axis=1).reshape(xx.shape)
+    bmag = np.linalg.norm(scaled_field(study.grid, corner.scale)(pts), axis=1).reshape(xx.shape)
     bmag = np.where(np.hypot(xx, yy) <= ch.radius, bmag, np.nan)
     plt = _mpl()
     fig, ax = plt.subplots(figsize=(4.6, 3.8))
@@ -176,7 +176,8 @@ def ray_figures(run) -> list[dict]:
     ctx, model = run.context, run.model
     if ctx is None:
         return []
-    from rfcheck.rules.rays import _skip, ray_study
+    from rfcheck.analysis.rays import ray_study
+    from rfcheck.rules.rays import _skip
 
     out = []
     for feed in model.feeds:

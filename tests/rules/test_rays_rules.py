@@ -10,11 +10,11 @@ import numpy as np
 import pytest
 
 from rfcheck.analysis.launch_path import Corner, collision_frequency, launch_path, profile_shape
+from rfcheck.analysis.rays import LAYER_BAND, compute_ray_study, ray_study
 from rfcheck.physics.access import mode_n2
 from rfcheck.physics.constants import C
 from rfcheck.physics.frequencies import ecr_field
 from rfcheck.rules.policy import load_policy
-from rfcheck.rules.rays import LAYER_BAND, _study, ray_study
 from rfcheck.run import run
 from rfcheck.spec import load_spec
 
@@ -42,7 +42,7 @@ def test_on_axis_ray_reproduces_the_one_dimensional_access_of_the_bench_reactor(
     ctx = bench_run.context
     feed = bench_run.model.feeds[0]
     assert not feed.launch.traced
-    study = _study(ctx, feed)  # the on-axis launch as one ray
+    study = compute_ray_study(ctx, feed)  # the on-axis launch as one ray
     path = launch_path(ctx, feed)
     scales = list(path.scales)
     densities = list(path.densities)

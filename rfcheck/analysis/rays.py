@@ -1,0 +1,306 @@
+"""The ray study of launches that are off axis, oblique or a beam (no verdicts): read by the
+rays.* rules and the report's ray figures, cached per feed for the run.
+
+A launch with ``x``/``y`` (off axis), ``tilt`` (oblique) or ``beam`` (a Gaussian beam) is
+traced in 3-D (:func:`rfcheck.physics.rays.trace_rays`) through the source's own field and
+density; every other launch is one ray on the axis, which the 1-D launch path
+(:mod:`rfcheck.analysis.launch_path`) already covers, and the rays.* rules say so (not
+applicable).
+
+The study, per feed, at each envelope corner of peak density (min, max) × current scale
+(min, max), at the feed's nominal frequency:
+
+* **Rays.** A beam: ``BEAM_RINGS`` rings of ``BEAM_PER_RING`` rays round a central one
+  (49 rays) with their exact TEM00 power shares, started on the launcher plane normal to the
+  phase front (:func:`rfcheck.physics.rays.trace_beam`); the 1/e² radius × 2 holds
+  1 − e^−8 of the power and the rest (3.4e-4) is counted as not traced. Otherwise one ray.
+  The branch is the feed's intended mode (the other parts of a linear launch are judged by
+  the 1-D rules).
+* **Medium.** |B| from the magnet model sampled once on a spline grid over the chamber
+  (:class:`rfcheck.physics.rays.GridField`, cells of R/``GRID_XY`` across and L/``GRID_Z``
+  along; the current scale applied to its scaled part); n_e = n_peak · shape(z), the
+  declared axial profile, uniform across the radius; one collision frequency ν (electron–ion
+  at the peak density and the lowest T_e, plus electron–neutral at the lowest pressure).
+* **Ends.** The side wall (r = R) and the far end wall; back through the launcher plane
+  ("returned": towards the launcher and its window); the band |B| = B_res (1 ± 1e-3) of the
+  target layer (fundamental, or B_ECR/2 for ecr-harmonic-2); a power floor; the length
+  budget 3 L (what ends there is "not ended").
+* **Power.** What a ray still carries when it meets the layer is absorbed there by the
+  fraction A: the R or X wave met from the high-field side is absorbed whole (cold theory:
+  the magnetic beach has no transmitted wave; Stix 1992 ch. 13); otherwise the tenuous-plasma
+  optical depths of :mod:`rfcheck.physics.absorption` (O1, O2, X2; the O1 form stands in
+  for the R/X wave met from the low-field side, a lower estimate) at the lowest T_e, with
+  L_B = |B| / |dB/ds| along the ray at the layer; the L wave has no electron resonance
+  (A = 0). Collisional damping along the way is deposited where it happens.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from rfcheck.model import FieldMap, Feed
+from rfcheck.physics.absorption import optical_depth_o1, optical_depth_o2, optical_depth_x2
+from rfcheck.physics.frequencies import ecr_field
+from rfcheck.physics.rays import GridField, trace_rays
+from rfcheck.physics.rays import _beam_rays as beam_rays
+
+from . import magnet_field
+from .launch_path import collision_frequency, profile_shape
+from .resonance import ECR_HARMONIC
+
+#: beam sampling: rings of rays round the central one (1 + 3 × 16 = 49 rays)
+BEAM_RINGS, BEAM_PER_RING = 3, 16
+#: field grid: cells across the chamber radius and along its length
+GRID_XY, GRID_Z = 12, 30
+#: relative tolerance of the ray integration (Dormand–Prince 5(4) per ray): on the examples
+#: D = 0 holds to ~1e-3 relative and the layer points move by < 1 µm against 1e-6
+RAY_RTOL = 1e-5
+#: right-hand-side evaluations allowed per bundle
+RAY_BUDGET = 6000
+#: longest ray, in chamber lengths
+LENGTH_FACTOR = 3.0
+#: relative half-width of the band that ends a ray at its layer
+LAYER_BAND = 1e-3
+#: ray ends, as the findings and figures name them
+ENDS = ("layer", "launcher", "side wall", "far end", "absorbed", "not ended")
+_STOP_END = {"cyclotron_layer": "layer", "resonance": "layer", "returned": "launcher",
+             "evanescent_start": "launcher", "absorbed": "absorbed"}
+
+
+def traced(feed: Feed) -> bool:
+    return bool(getattr(feed.launch, "traced", False))
+
+
+@dataclass
+class RayCorner:
+    """The rays of one envelope corner and where their power goes (fractions of the launched
+    power)."""
+
+    density: float
+    scale: float
+    rays: tuple
+    weights: np.ndarray
+    ends: list[str]
+    layer_absorbed: np.ndarray       # A per ray (0 where the ray did not meet the layer)
+    shares: dict[str, float]          # power carried to each end (ENDS), "not traced"
+    reach: float                      # power that meets the layer
+    absorbed: float                   # first pass: collisional + at the layer
+    deposits: np.ndarray              # (M, 4): x, y, z (m), power fraction
+    in_target: float = math.nan       # share of the deposited power inside the target
+
+
+@dataclass
+class RayStudy:
+    feed: Feed
+    mode: str
+    harmonic: int
+    b_res: float
+    grid: GridField
+    corners: list[RayCorner] = field(default_factory=list)
+    label: str = ""
+
+    def worst(self, key, sense: str = "min") -> RayCorner:
+        pick = min if sense == "min" else max
+        return pick(self.corners, key=key)
+
+    def assumptions(self) -> str:
+        launch = self.feed.launch
+        what = (f"a Gaussian beam of waist {launch.beam.waist * 1e3:.3g} mm sampled by "
+                f"{len(self.corners[0].rays)} rays" if launch.beam else "one ray")
+        return (f"{what} of the {self.mode} branch from {self.label}; cold plasma; n_e from "
+                f"the declared axial profile, uniform across the radius; |B| from the magnet "
+                f"model on a {'×'.join(str(n) for n in self.grid.shape)} spline grid; rays "
+                f"end at |B| = B_res (1 ± {LAYER_BAND:g}); integration rtol {RAY_RTOL:g}; "
+                "other parts of a linear launch: the 1-D rules")
+
+
+def ray_grid(ctx) -> GridField:
+    """The magnet's scaled and fixed field (6 components) on the ray grid (cached)."""
+    if "ray-grid" not in ctx._cache:
+        ch = ctx.model.chamber
+        r = ch.radius
+        spacing = np.array([r / GRID_XY, r / GRID_XY, ch.length / GRID_Z])
+        fm = magnet_field.field_model(ctx)
+        # nodes beyond the wall take their radial projection (a magnet may sit just outside);
+        # a measured map may end at the wall and at the chamber ends
+        measured = any(isinstance(s, FieldMap) for s in ctx.model.magnet.sources)
+        reach = r * (1.0 - 1e-9) if measured else r * (1.0 + 0.5 / GRID_XY)
+
+        def values(p):
+            if measured:  # a measured map covers the chamber only: clamp the end pads
+                p = p.copy()
+                p[:, 2] = np.clip(p[:, 2], ch.z_start, ch.z_end)
+            return np.concatenate(node_fields(fm, p), axis=1)
+
+        ctx._cache["ray-grid"] = GridField(values, [-r, -r, ch.z_start], [r, r, ch.z_end],
+                                           spacing, radius=reach)
+    return ctx._cache["ray-grid"]
+
+
+def node_fields(fm, points: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """(scaled, fixed) nominal fields of the field model at points (n, 3), as
+    ``FieldModel.unit_fields`` gives them, with every axisymmetric source evaluated once per
+    distinct (r, z) of the points and turned to each point's azimuth (a grid of n × n nodes
+    across holds about n²/8 distinct radii), the others at every point (in chunks)."""
+    from rfcheck.magnet.sources import CHUNK_POINTS
+
+    p = np.asarray(points, dtype=float).reshape(-1, 3)
+    scaled, fixed = np.zeros_like(p), np.zeros_like(p)
+    rho = np.hypot(p[:, 0], p[:, 1])
+    rz, inverse = np.unique(np.column_stack([rho, p[:, 2]]), axis=0, return_inverse=True)
+    inverse = inverse.reshape(-1)
+    half_plane = np.column_stack([rz[:, 0], np.zeros(len(rz)), rz[:, 1]])
+    with np.errstate(invalid="ignore", divide="ignore"):
+        cos_phi = np.where(rho > 0, p[:, 0] / np.where(rho > 0, rho, 1.0), 0.0)
+        sin_phi = np.where(rho > 0, p[:, 1] / np.where(rho > 0, rho, 1.0), 0.0)
+
+    def chunked(src, q):
+        return np.concatenate([src.field(q[i:i + CHUNK_POINTS])
+                               for i in range(0, len(q), CHUNK_POINTS)]) if len(q) else q
+
+    for src in fm.sources:
+        if src.axisymmetric:
+            f = chunked(src, half_plane)[inverse]  # (B_r, 0, B_z) on the half plane y = 0
+            b = np.column_stack([f[:, 0] * cos_phi, f[:, 0] * sin_phi, f[:, 2]])
+        else:
+            b = chunked(src, p)
+        if src.scales_with_current:
+            scaled += b
+        else:
+            fixed += b
+    return scaled, fixed
+
+
+def scaled_field(grid: GridField, scale: float):
+    """|B| vector at points (n, 3) for one current scale, from the grid's (scaled, fixed) parts."""
+    def b(points):
+        v = grid(points)
+        return scale * v[:, :3] + v[:, 3:]
+    return b
+
+
+def ray_study(ctx, feed: Feed) -> RayStudy:
+    """The ray study of one traced feed (cached for the run)."""
+    key = ("ray-study", feed.id)
+    if key not in ctx._cache:
+        ctx._cache[key] = compute_ray_study(ctx, feed)
+    return ctx._cache[key]
+
+
+def compute_ray_study(ctx, feed: Feed) -> RayStudy:
+    model, env = ctx.model, ctx.envelope
+    ch, plasma, launch = model.chamber, model.plasma, feed.launch
+    h = ECR_HARMONIC.get(feed.absorption, 1)
+    f = feed.frequency
+    b_res = float(ecr_field(f, harmonic=h))
+    grid = ray_grid(ctx)
+    origin = launch.origin.copy()
+    origin[2] = min(max(origin[2], ch.z_start), ch.z_end)
+    direction = launch.wave_direction
+    label = (f"(x, y, z) = ({origin[0] * 1e3:.4g}, {origin[1] * 1e3:.4g}, "
+             f"{origin[2] * 1e3:.4g}) mm, {math.degrees(launch.tilt):.3g}° from "
+             f"{'+' if launch.direction > 0 else '-'}z")
+    if launch.beam:
+        starts, dirs, weights = beam_rays(f, origin, direction, launch.beam.waist,
+                                          waist_distance=launch.beam.waist_distance,
+                                          rings=BEAM_RINGS, per_ring=BEAM_PER_RING)
+    else:
+        starts, dirs, weights = origin[None, :], direction[None, :], np.ones(1)
+    far, sign = (ch.z_end, 1.0) if launch.direction > 0 else (ch.z_start, -1.0)
+
+    def inside(p):
+        return np.minimum(ch.radius - np.hypot(p[:, 0], p[:, 1]), sign * (far - p[:, 2]))
+
+    t_e = float(np.min(env.electron_temperature))
+    pressure = None if plasma.neutral is None else plasma.neutral.pressure.min
+    study = RayStudy(feed, launch.mode, h, b_res, grid, label=label)
+    densities = sorted({float(np.min(env.density)), float(np.max(env.density))})
+    scales = sorted({float(np.min(env.current_scale)), float(np.max(env.current_scale))})
+    for n_peak in densities:
+        nu = float(collision_frequency(plasma, n_peak, t_e, pressure))
+
+        def dens(p, n_peak=n_peak):
+            return n_peak * profile_shape(plasma.profile, ch, p[:, 2])
+
+        for scale in scales:
+            b = scaled_field(grid, scale)
+            rays = trace_rays(f, starts, dirs, launch.mode, b, dens,
+                              max_length=LENGTH_FACTOR * ch.length, ions=plasma.ions,
+                              collision_frequency=nu, inside=inside, cyclotron_field=b_res,
+                              cyclotron_band=LAYER_BAND, rtol=RAY_RTOL,
+                              max_evaluations=RAY_BUDGET)
+            study.corners.append(_corner(study, rays, weights, n_peak, scale, b, dens, t_e,
+                                         ch, far, f))
+    target = launch.target
+    if target is not None:
+        r_t = ch.radius if target.radius is None else target.radius
+        for c in study.corners:
+            d = c.deposits
+            total = float(d[:, 3].sum()) if d.size else 0.0
+            inn = ((d[:, 2] >= target.z_start) & (d[:, 2] <= target.z_end)
+                   & (np.hypot(d[:, 0], d[:, 1]) <= r_t)) if d.size else np.zeros(0, bool)
+            c.in_target = float(d[inn, 3].sum()) / total if total > 0 else 0.0
+    return study
+
+
+def _end_of(ray, ch, far) -> str:
+    if ray.stop in _STOP_END:
+        return _STOP_END[ray.stop]
+    if ray.stop == "wall":
+        p = ray.end
+        return "side wall" if ch.radius - math.hypot(p[0], p[1]) < abs(far - p[2]) else "far end"
+    return "not ended"
+
+
+def _layer_fraction(study: RayStudy, ray, b, dens, t_e: float, f: float) -> float:
+    """A of one ray at the layer (see the module docstring)."""
+    mode, h = study.mode, study.harmonic
+    if mode == "L":
+        return 0.0
+    end = ray.end
+    step = ray.path[-1] - ray.path[-2] if len(ray.path) > 1 else np.array([0.0, 0.0, 1.0])
+    s_hat = step / max(float(np.linalg.norm(step)), 1e-300)
+    delta = 1e-4
+    pts = np.vstack([end - delta * s_hat, end + delta * s_hat])
+    bm = np.linalg.norm(b(pts), axis=1)
+    grad = abs(bm[1] - bm[0]) / (2 * delta)
+    b_end = float(np.linalg.norm(b(end[None, :])[0]))
+    high_side = float(np.linalg.norm(b(ray.path[:1])[0])) > study.b_res
+    if h == 1 and mode in ("R", "X") and high_side:
+        return 1.0
+    l_b = b_end / grad if grad > 0 else math.inf
+    n_e = float(dens(end[None, :])[0])
+    form = optical_depth_o2 if (h == 2 and mode == "O") else (
+        optical_depth_x2 if h == 2 else optical_depth_o1)
+    tau = float(np.asarray(form(f, n_e, t_e, l_b).tau))
+    return float(1.0 - math.exp(-tau)) if math.isfinite(tau) and tau > 0 else 0.0
+
+
+def _corner(study, rays, weights, n_peak, scale, b, dens, t_e, ch, far, f) -> RayCorner:
+    ends = [_end_of(r, ch, far) for r in rays]
+    a = np.array([_layer_fraction(study, r, b, dens, t_e, f) if e == "layer" else 0.0
+                  for r, e in zip(rays, ends)])
+    p_end = np.array([float(r.power[-1]) for r in rays])
+    shares = {e: 0.0 for e in ENDS}
+    deposits = []
+    for r, e, w, pe, ai in zip(rays, ends, weights, p_end, a):
+        if e == "layer":
+            shares["layer"] += w * pe
+            if ai > 0:
+                deposits.append([*r.end, w * pe * ai])
+        else:
+            shares[e] += w * pe
+        dp = -np.diff(r.power) * w  # collisional damping, where it happens
+        mids = 0.5 * (r.path[1:] + r.path[:-1])
+        keep = dp > 0
+        deposits.extend(np.column_stack([mids[keep], dp[keep]]).tolist())
+    collisional = float(np.sum(weights * (1.0 - p_end)))
+    shares["absorbed"] += collisional
+    shares["not traced"] = max(0.0, 1.0 - float(weights.sum()))
+    reach = shares["layer"]
+    absorbed = collisional + float(np.sum(weights * p_end * a))
+    return RayCorner(n_peak, scale, tuple(rays), weights, ends, a, shares, reach, absorbed,
+                     np.array(deposits, dtype=float).reshape(-1, 4))
