@@ -69,7 +69,7 @@ def characteristics(ctx: Context) -> dict:
             entry["ecr_gradients"] = {"value": [c.gradient for c in crossings], "unit": "T/m"}
             entry["ecr_zone_widths"] = {"value": [c.width for c in crossings], "unit": "m"}
         if feed.absorption == "inductive" and feed.coil is not None:
-            from rfcheck.rules.inductive import eh_transition
+            from rfcheck.analysis.inductive import eh_transition
 
             try:  # the E-to-H transition density (inductive.h-mode judges the envelope by it)
                 n_eh, _ = eh_transition(ctx, feed)

@@ -45,7 +45,7 @@ def _run(model, rule_id, policy, **overrides):
 
 
 def _load_range(model):
-    from rfcheck.rules.inductive import coil_impedance
+    from rfcheck.analysis.inductive import coil_impedance
 
     ctx = Context(model, Envelope.of(model))
     return coil_impedance(ctx, model.feeds[0])[0].impedance
