@@ -9,7 +9,7 @@ import numpy as np
 
 from rfcheck.analysis.launch_path import LaunchPath, collision_frequency, launch_path, profile_shape
 from rfcheck.analysis.parts import mode_content
-from rfcheck.analysis.resonance import ECR_HARMONIC
+from rfcheck.analysis.resonance import ECR_HARMONIC, path_crossing, resonance_tables
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.physics.absorption import (collisional_regime, optical_depth_o1, optical_depth_o2,
                                         optical_depth_x2)
@@ -24,37 +24,10 @@ _MULTIPASS = ("a low single pass is normal in a small device: it relies on multi
               "absorption after reflections from the cavity walls (and on non-thermal electrons)")
 
 
-def _crossing(ctx: Context, path: LaunchPath, scale_index: int, b_res: float, rel_tol: float):
-    """The first on-axis crossing of |B| = b_res met from the launcher (or None)."""
-    from rfcheck.magnet.geometry import resonance_crossings
-
-    profile = ctx.axis_profiles()[scale_index]
-    ahead = [c for c in resonance_crossings(profile, b_res, rel_tol)
-             if path.direction * (c.z - path.z0) >= 0]
-    return min(ahead, key=lambda c: abs(c.z - path.z0)) if ahead else None
-
-
-def _resonance_tables(ctx: Context, path: LaunchPath, h: int):
-    """Per (scale, frequency): profile shape and L_B at the first crossing, and its z (NaN
-    where the resonance is not on the path)."""
-    ns, nf = path.scales.size, path.frequencies.size
-    shape, l_b, z = (np.full((ns, nf), np.nan) for _ in range(3))
-    for j in range(ns):
-        for k, f in enumerate(path.frequencies):
-            b_res = float(ecr_field(f, harmonic=h))
-            c = _crossing(ctx, path, j, b_res, 0.0)
-            if c is None:
-                continue
-            z[j, k] = c.z
-            l_b[j, k] = b_res / abs(c.gradient) if c.gradient != 0 else np.inf
-            shape[j, k] = float(profile_shape(ctx.model.plasma.profile, ctx.model.chamber, c.z))
-    return shape, l_b, z
-
-
 def _thermal(ctx, path, feed, h):
     """Single-pass τ over the envelope grid (lowest T_e: τ grows with T_e)."""
     grid = ctx.envelope.grid(feed)
-    shape, l_b, zc = _resonance_tables(ctx, path, h)
+    shape, l_b, zc = resonance_tables(ctx, path, h)
     t_e = float(path.temperatures.min())
     n_e = grid.density * shape[None, :, :]
     mode = path.mode
@@ -281,7 +254,7 @@ def collisional_regime_rule(ctx: Context, *, max_nu_over_omega: float) -> Iterat
         n_w = float(grid.density.reshape(-1)[i])
         h = ECR_HARMONIC.get(feed.absorption, 1)
         j1 = int(np.argmin(np.abs(path.scales - 1.0)))
-        c = _crossing(ctx, path, j1, float(ecr_field(f_w, harmonic=h)), 0.0) \
+        c = path_crossing(ctx, path, j1, float(ecr_field(f_w, harmonic=h)), 0.0) \
             if feed.absorption != "uhr" else None
         at_res = ""
         if c is not None:

@@ -7,7 +7,8 @@ Which feeds: a *heating scheme* is a feed with `mode = "O"` and `absorption = "e
 R-wave ECR sources (2.45-18 GHz ion sources along the axis) are judged by the access and
 absorption rules; they get no finding from the scheme rules here. The multi-feed rules speak
 only where a source has two or more ECR feeds (separation, cross-coupling) or feeds that name
-one circulator (shared circulator).
+one circulator (shared circulator). The optical depth over the envelope is an analysis
+(:func:`rfcheck.analysis.ech.heating_optical_depth`); the rules here judge it.
 """
 
 from __future__ import annotations
@@ -17,17 +18,16 @@ from collections.abc import Iterator
 
 import numpy as np
 
-from rfcheck.analysis.launch_path import NEAR_FIELD, launch_path
+from rfcheck.analysis.ech import heating_optical_depth
+from rfcheck.analysis.launch_path import NEAR_FIELD
 from rfcheck.analysis.resonance import ECR_HARMONIC
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.model import Feed
-from rfcheck.physics.absorption import (MAX_TEMPERATURE_EV, optical_depth_o1, optical_depth_o2,
-                                        optical_depth_x2)
+from rfcheck.physics.absorption import MAX_TEMPERATURE_EV
 from rfcheck.physics.constants import M_E_C2_EV
 from rfcheck.physics.frequencies import critical_density, ecr_field
 from rfcheck.physics.waveguide import line_from_name
 
-from .absorption import _resonance_tables
 from .context import Context
 from .load import cold_gamma, plasma_return, running_gamma
 from .registry import Option, Range, rule
@@ -54,28 +54,6 @@ def heating_scheme(feed: Feed) -> str | None:
 
 def ech_feeds(ctx: Context) -> list[tuple[Feed, str]]:
     return [(f, s) for f in ctx.model.feeds if (s := heating_scheme(f)) is not None]
-
-
-def _optical_depth(ctx: Context, feed: Feed, scheme: str):
-    """τ over the envelope grid (density × current scale × frequency) at T_e min and max, with
-    the crossing's L_B and X: cached per feed."""
-    key = ("ech-optical-depth", feed.id)
-    if key in ctx._cache:
-        return ctx._cache[key]
-    path = launch_path(ctx, feed, feed.launch.mode)
-    h = 1 if scheme == "O1" else 2
-    shape, l_b, zc = _resonance_tables(ctx, path, h)
-    grid = ctx.envelope.grid(feed)
-    n_e = grid.density * shape[None, :, :]
-    form = {"O1": optical_depth_o1, "O2": optical_depth_o2, "X2": optical_depth_x2}[scheme]
-    temps = ctx.envelope.electron_temperature
-    out = {}
-    for t_e in (float(temps.min()), float(temps.max())):
-        od = form(grid.frequency, n_e, t_e, l_b[None])
-        tau = np.where(np.isnan(zc)[None], np.nan, np.broadcast_to(od.tau, grid.shape))
-        out[t_e] = (tau, od)
-    ctx._cache[key] = (path, grid, shape, l_b, zc, out)
-    return ctx._cache[key]
 
 
 def _oblique_text(path) -> tuple[str, float]:
@@ -131,7 +109,7 @@ def optical_depth(ctx: Context, *, min_optical_depth: float) -> Iterator[Finding
     requirement = f"single-pass optical depth τ ≥ {min_optical_depth:.3g}"
     for feed, scheme in ech_feeds(ctx):
         subject = f"feed {feed.id}"
-        path, grid, shape, l_b, zc, out = _optical_depth(ctx, feed, scheme)
+        path, grid, shape, l_b, zc, out = heating_optical_depth(ctx, feed, scheme)
         t_lo, t_hi = min(out), max(out)
         tau_lo, od_lo = out[t_lo]
         worst, where = grid.worst(tau_lo, "min")
@@ -267,7 +245,7 @@ def stray_radiation(ctx: Context, *, max_stray_power: float) -> Iterator[Finding
     requirement = f"average power unabsorbed after one pass ≤ {Quantity(max_stray_power, 'W').text()}"
     for feed, scheme in ech_feeds(ctx):
         subject = f"feed {feed.id}"
-        path, grid, shape, l_b, zc, out = _optical_depth(ctx, feed, scheme)
+        path, grid, shape, l_b, zc, out = heating_optical_depth(ctx, feed, scheme)
         tau_lo = out[min(out)][0]
         worst, where = grid.worst(tau_lo, "min")
         where["electron_temperature"] = Quantity(min(out), "eV")

@@ -6,7 +6,7 @@ from collections.abc import Iterator
 
 import numpy as np
 
-from rfcheck.analysis.resonance import ECR_HARMONIC
+from rfcheck.analysis.resonance import ECR_HARMONIC, envelope_crossings
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.physics.frequencies import ecr_field
 
@@ -111,23 +111,6 @@ def _on_axis_range(ctx: Context, feed, subject: str, requirement: str, label: st
     return ctx.finding(subject, requirement, passed=passed, message=msg,
                        measured=Quantity(worst, "1"), limit=Quantity(min_field_margin, "1"),
                        margin=Quantity(margin, "1"), worst_case=where)
-
-
-def envelope_crossings(ctx: Context, feed, harmonic: int) -> list[list[tuple]]:
-    """On-axis crossings of the resonance field of `feed` for every envelope point.
-
-    Returns ``out[i][j]``: the :class:`~rfcheck.magnet.geometry.Crossing` tuple for current
-    scale i (``ctx.axis_profiles()``) and frequency j (``ctx.envelope.frequencies(feed)``),
-    from spline roots (not grid nodes). Cached on the context.
-    """
-    key = ("crossings", feed.id, harmonic)
-    if key not in ctx._cache:
-        from rfcheck.magnet.geometry import resonance_crossings
-
-        freqs = ctx.envelope.frequencies(feed)
-        ctx._cache[key] = [[resonance_crossings(p, float(ecr_field(f, harmonic=harmonic)))
-                            for f in freqs] for p in ctx.axis_profiles()]
-    return ctx._cache[key]
 
 
 def _clearance_objects(ctx: Context, feed) -> list[tuple[str, float]]:
