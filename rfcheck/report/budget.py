@@ -130,7 +130,7 @@ def _ignition(run, feed) -> Budget:
     details = (f.details or {}) if f is not None else {}
     gamma = details.get("gamma_cold")
     if gamma is None:
-        from rfcheck.rules.load import cold_gamma
+        from rfcheck.analysis.load import cold_gamma
 
         gamma, _ = cold_gamma(feed)
     declared = details.get("gamma_cold_declared", feed.cold_cavity_gamma is not None)

@@ -20,6 +20,7 @@ import numpy as np
 
 from rfcheck.analysis.ech import heating_optical_depth
 from rfcheck.analysis.launch_path import NEAR_FIELD
+from rfcheck.analysis.load import cold_gamma, plasma_return, running_gamma
 from rfcheck.analysis.resonance import ECR_HARMONIC
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.model import Feed
@@ -29,7 +30,6 @@ from rfcheck.physics.frequencies import critical_density, ecr_field
 from rfcheck.physics.waveguide import line_from_name
 
 from .context import Context
-from .load import cold_gamma, plasma_return, running_gamma
 from .registry import Option, Range, rule
 
 __all__ = ["heating_scheme", "ech_feeds"]

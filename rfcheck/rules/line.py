@@ -8,6 +8,7 @@ from collections.abc import Iterator
 import numpy as np
 
 from rfcheck.analysis.launch_path import NEAR_FIELD
+from rfcheck.analysis.load import IGNITION, RUNNING, cold_gamma, running_gamma
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.physics.rfpower import (breakdown_field, max_forward_power, max_net_power,
                                      te10_max_power, te10_peak_field, te11_max_power,
@@ -20,7 +21,6 @@ from rfcheck.physics.quasioptical import (he11_max_power, he11_peak_field, line_
 from rfcheck.physics.constants import C
 
 from .context import Context
-from .load import IGNITION, RUNNING, cold_gamma, running_gamma
 from .registry import Option, Range, rule
 
 

@@ -1,84 +1,23 @@
 """The plasma as a load, in its two states: running (the plasma's 1-D full-wave reflection
 per part of the launched power, the far end included, and the total reflected power at the
 generator, window and plasma combined) and ignition (no plasma: the generator looks into the
-unlit cavity)."""
+unlit cavity). The numbers are analyses (:mod:`rfcheck.analysis.load`); the rules judge them."""
 
 from __future__ import annotations
 
 import math
 from collections.abc import Iterator
-from dataclasses import dataclass
 
-from rfcheck.analysis.launch_path import NEAR_FIELD, Corner, launch_path
-from rfcheck.analysis.parts import ModeContent, mode_content, worst_split
-from rfcheck.analysis.window import window_analysis
+from rfcheck.analysis.launch_path import NEAR_FIELD, launch_path
+from rfcheck.analysis.load import (IGNITION, RUNNING, PlasmaReturn, cold_gamma, plasma_return,
+                                   running_gamma)
+from rfcheck.analysis.parts import mode_content
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.model import REFLECTING_WALLS, Feed
 from rfcheck.units import format_fraction as _pct
 
 from .context import Context
 from .registry import Option, Range, rule
-
-__all__ = ["PlasmaReturn", "plasma_return", "running_gamma", "cold_gamma", "RUNNING", "IGNITION"]
-
-_BALANCE_CAUTION = 1e-3
-RUNNING = "running"
-IGNITION = "ignition"
-
-
-@dataclass(frozen=True)
-class PlasmaReturn:
-    """The feed's power returned by the plasma at the worst envelope corner.
-
-    returned: Σ f_i returned_i at the worst corner and the worst candidate split;
-    split: that split {mode: fraction}; corner: the corner; parts: {mode: PlasmaLoad}."""
-
-    returned: float
-    split: dict
-    corner: Corner
-    parts: dict
-    content: ModeContent
-
-    def part_text(self, mode: str) -> str:
-        load = self.parts[mode]
-        share = self.split.get(mode, 0.0)
-        first = load.first
-        tail = "" if abs(first.balance_residual) <= _BALANCE_CAUTION else \
-            f", energy balance residual {first.balance_residual:.2g}: treat with caution"
-        return (f"{mode} part ({_pct(share)}) returns {_pct(load.returned)} of its power "
-                f"(first pass: reflected {_pct(first.reflected)}, absorbed "
-                f"{_pct(first.absorbed)}, to the far end {_pct(first.transmitted)}{tail})")
-
-    def details(self) -> dict:
-        return {"state": RUNNING, "polarisation": self.content.summary(),
-                "parts": [{"part": m, "fraction": self.split.get(m, 0.0),
-                           "returned": ld.returned, "absorbed": ld.absorbed,
-                           "escaped": ld.escaped, "far_end": ld.wall,
-                           "far_end_declared": ld.declared,
-                           "first_pass": {"reflected": ld.first.reflected,
-                                          "transmitted": ld.first.transmitted,
-                                          "absorbed": ld.first.absorbed}}
-                          for m, ld in self.parts.items()]}
-
-
-def plasma_return(ctx: Context, feed: Feed) -> PlasmaReturn | None:
-    """The worst returned power fraction of `feed` over the envelope corners (cached), None
-    for feeds without launched parts (near field, no path)."""
-    key = ("plasma-return", feed.id)
-    if key not in ctx._cache:
-        content = mode_content(ctx, feed)
-        out = None
-        if content.parts:
-            paths = {p.mode: launch_path(ctx, feed, p.mode) for p in content.parts}
-            first = paths[content.parts[0].mode]
-            for corner in first.corners():
-                loads = {m: path.load(corner) for m, path in paths.items()}
-                total, split = worst_split(content, corner,
-                                           {m: ld.returned for m, ld in loads.items()}, "max")
-                if out is None or total > out.returned:
-                    out = PlasmaReturn(total, split, corner, loads, content)
-        ctx._cache[key] = out
-    return ctx._cache[key]
 
 
 def _wall_note(ret: PlasmaReturn, ctx: Context, feed: Feed) -> str:
@@ -178,34 +117,6 @@ def plasma_reflection(ctx: Context, *, max_reflected_fraction: float) -> Iterato
                           margin=Quantity(margin, "1"),
                           worst_case=path.worst_case(ret.corner, temperature=True),
                           details=ret.details())
-
-
-@dataclass(frozen=True)
-class RunningGamma:
-    window: float  # |Γ_w|, sum over the feed's windows
-    plasma: float  # |Γ_p| = √(returned fraction)
-    bound: float  # min(1, |Γ_w| + |Γ_p|)
-    windows: tuple[str, ...]
-    ret: PlasmaReturn | None
-
-
-def running_gamma(ctx: Context, feed: Feed) -> RunningGamma:
-    """The running state's bound |Γ_total| ≤ |Γ_w| + |Γ_p| (amplitudes at their own worst
-    points; NaN when a window's reflection is undefined)."""
-    windows = [w for w in ctx.model.windows if w.feed == feed.id]
-    g_w = sum(window_analysis(ctx, w).worst_gamma[0] for w in windows)
-    ret = plasma_return(ctx, feed) if feed.absorption not in NEAR_FIELD else None
-    g_p = math.sqrt(ret.returned) if ret is not None else 0.0
-    bound = min(1.0, g_w + g_p) if math.isfinite(g_w) else math.nan
-    return RunningGamma(g_w, g_p, bound, tuple(w.id for w in windows), ret)
-
-
-def cold_gamma(feed: Feed) -> tuple[float, str]:
-    """|Γ| of the unlit cavity seen by the generator and where it comes from."""
-    if feed.cold_cavity_gamma is not None:
-        return feed.cold_cavity_gamma, f"|Γ_cold| = {feed.cold_cavity_gamma:.3g} (declared)"
-    return 1.0, ("|Γ_cold| = 1 (the cold cavity's reflection is not declared: the worst case, "
-                 "a cavity that returns all the power)")
 
 
 @rule("load.reflected-power", severity=Severity.ERROR,

@@ -109,7 +109,7 @@ def test_standing_wave_of_a_quarter_wave_window_raises_the_peak_field(base_model
     e0 = math.sqrt(4 * ETA0 / math.sqrt(1 - (fc / f) ** 2) * p / (a * b))
     # running state: the window's |Γ| plus the plasma's returned amplitude (load.reflected-
     # power's bound, computed independently here from the window closed form)
-    from rfcheck.rules.load import running_gamma
+    from rfcheck.analysis.load import running_gamma
 
     running = running_gamma(context_of(base_model, feed, [win], [mat]), feed)
     assert running.window == pytest.approx(g, rel=1e-9)
