@@ -35,6 +35,7 @@ from rfcheck.physics.exposure import (
     reference_level,
 )
 
+from . import magnet_field
 from .state import RunState
 
 __all__ = ["Contribution", "FeedExposure", "LeakAnalysis", "leak_analysis",
@@ -113,6 +114,20 @@ class LeakAnalysis:
     def distance_to(self, fraction: float) -> float:
         """Distance at which the inverse-square estimate falls to `fraction` of the level, m."""
         return self.occupied_distance * math.sqrt(self.ratio / fraction)
+
+
+def fringe_lines(ctx: RunState, levels: dict[str, float]):
+    """{option name: FringeExtent} over the envelope's current scales (cached), or None for a
+    magnet without a finite extent (a uniform field)."""
+    key = ("fringe", tuple(sorted(levels.items())))
+    if key not in ctx._cache:
+        from rfcheck.magnet.fringe import fringe_extent
+
+        names = list(levels)
+        got = fringe_extent(magnet_field.field_model(ctx), ctx.model.magnet, ctx.model.chamber,
+                            [levels[n] for n in names], ctx.envelope.current_scale)
+        ctx._cache[key] = None if got is None else dict(zip(names, got))
+    return ctx._cache[key]
 
 
 def path_cutoff(path: LeakPath) -> float:

@@ -1,34 +1,22 @@
 """exposure.static-field-line: where the static fringe field falls to the implant-warning and
-projectile levels, against the controlled-area boundary."""
+projectile levels (the analysis :func:`rfcheck.analysis.exposure.fringe_lines`), against the
+controlled-area boundary."""
 
 from __future__ import annotations
 
 from collections.abc import Iterator
 
+from rfcheck.analysis.exposure import fringe_lines
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.model import UniformField
 
 from .context import Context
 from .registry import Option, Range, rule
 
-__all__ = ["static_field_line", "fringe_lines", "LEVEL_NAMES"]
+__all__ = ["static_field_line", "LEVEL_NAMES"]
 
 #: subject words of the two lines
 LEVEL_NAMES = {"implant_level": "implant-warning line", "projectile_level": "projectile line"}
-
-
-def fringe_lines(ctx: Context, levels: dict[str, float]):
-    """{option name: FringeExtent} over the envelope's current scales (cached), or None for a
-    magnet without a finite extent (a uniform field)."""
-    key = ("fringe", tuple(sorted(levels.items())))
-    if key not in ctx._cache:
-        from rfcheck.magnet.fringe import fringe_extent
-
-        names = list(levels)
-        got = fringe_extent(ctx.field_model, ctx.model.magnet, ctx.model.chamber,
-                            [levels[n] for n in names], ctx.envelope.current_scale)
-        ctx._cache[key] = None if got is None else dict(zip(names, got))
-    return ctx._cache[key]
 
 
 def _place(c, axis: str) -> str:

@@ -3,6 +3,7 @@ envelope, and the drive frequency against the lower-hybrid frequency.
 
 These rules speak only about feeds with ``absorption = "helicon"``; a source without one
 gets no finding from them (they are about a source kind, as the ``inductive.*`` rules).
+The field under the antenna is the analysis :func:`rfcheck.analysis.helicon.antenna_field`.
 """
 
 from __future__ import annotations
@@ -12,8 +13,8 @@ from collections.abc import Iterator
 
 import numpy as np
 
+from rfcheck.analysis.helicon import antenna_field
 from rfcheck.findings import Finding, Quantity, Severity
-from rfcheck.model import Feed
 from rfcheck.physics.frequencies import lower_hybrid_frequency
 from rfcheck.physics.helicon import (antenna_band, antenna_wavenumber, branch_merge_field,
                                      helicon_density, helicon_wavenumber, on_helicon_branch,
@@ -21,24 +22,6 @@ from rfcheck.physics.helicon import (antenna_band, antenna_wavenumber, branch_me
 
 from .context import Context
 from .registry import Option, Range, rule
-
-__all__ = ["antenna_field"]
-
-
-def antenna_field(ctx: Context, feed: Feed) -> np.ndarray:
-    """|B| on the axis under the antenna (from launch.z − L/2 to launch.z + L/2), T, shape
-    (current scales, points): the chamber's axis samples inside the span plus its two ends."""
-    key = ("helicon-antenna-field", feed.id)
-    if key not in ctx._cache:
-        z = ctx.axis_z
-        b = ctx.axis_field()
-        half = feed.antenna.length / 2.0
-        lo, hi = feed.launch.z - half, feed.launch.z + half
-        inside = (z > lo) & (z < hi)
-        ends = np.stack([np.interp([lo, hi], z, row) for row in b])
-        ctx._cache[key] = np.concatenate([ends, b[:, inside]], axis=1)
-    return ctx._cache[key]
-
 
 def _helicon_feeds(ctx: Context):
     return [f for f in ctx.model.feeds if f.absorption == "helicon"]
