@@ -1,7 +1,7 @@
 """The launch path of each part of a feed's launched power (its split into the plasma's
 characteristic waves, rfcheck.analysis.parts), shared by the cutoff, access.*, load.* and
 absorption.* rules, the characteristics and the report figures; built once per feed and part
-and cached on the Context.
+and cached in the run's ``_cache``.
 
 Geometry: the path runs on the chamber axis from the launcher (its position clipped into the
 chamber: the plasma starts at the chamber wall) in the launch direction to the far end of the
@@ -481,7 +481,7 @@ def _reach_of(acc: PathAccess) -> Reach:
 
 def launch_path(ctx, feed: Feed, mode: str | None = None) -> LaunchPath:
     """The launch path of one part (mode; default the feed's intended mode) of the feed's
-    power (cached on the Context)."""
+    power (cached for the run)."""
     mode = (mode or feed.launch.mode).upper()
     key = ("launch-path", feed.id, mode)
     if key not in ctx._cache:

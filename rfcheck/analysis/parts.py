@@ -1,6 +1,6 @@
 """The parts of each feed's launched power: its split into the plasma's two characteristic
 waves at the launcher (no verdicts; shared by the cutoff, access, load and absorption rules,
-the characteristics and the report, cached on the Context).
+the characteristics and the report, cached for the run).
 
 A feed declares what its launcher sends (`launch.polarisation`): linear with the E direction
 relative to the static field, circular right or left (named relative to B: right is the R
@@ -203,7 +203,7 @@ def _compute(ctx, feed: Feed) -> ModeContent:
 
 
 def mode_content(ctx, feed: Feed) -> ModeContent:
-    """The parts of `feed`'s launched power (cached on the Context)."""
+    """The parts of `feed`'s launched power (cached for the run)."""
     key = ("mode-content", feed.id)
     if key not in ctx._cache:
         ctx._cache[key] = _compute(ctx, feed)

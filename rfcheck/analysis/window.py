@@ -1,7 +1,7 @@
 """The window numbers shared by the window rules, `line.breakdown`, the characteristics and the
 report figure: each window's worst cases over its feed's frequency band and the spread of
 every layer (thickness ± tolerance, ε_r and tan δ over their ranges), computed once per run
-and cached on the Context.
+and cached in the run's ``_cache``.
 
 Materials and their spreads come from :mod:`rfcheck.analysis.window_material` (library, spec,
 or the stated default spread; loss tangents scaled to the feed's frequency). The searches

@@ -23,6 +23,7 @@ from rfcheck.physics.helicon import (antenna_band, antenna_wavenumber, branch_me
 from .context import Context
 from .registry import Option, Range, rule
 
+
 def _helicon_feeds(ctx: Context):
     return [f for f in ctx.model.feeds if f.absorption == "helicon"]
 

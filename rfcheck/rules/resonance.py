@@ -13,6 +13,7 @@ from rfcheck.physics.frequencies import ecr_field
 from .context import Context
 from .registry import Option, Range, rule
 
+
 @rule("resonance.ecr-in-chamber", severity=Severity.ERROR,
       summary="The ECR field of each ECR-heated feed is crossed on the axis inside the chamber.",
       options={"min_field_margin": Option(
