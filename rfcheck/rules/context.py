@@ -28,11 +28,14 @@ class Context:
     #: option values (SI) of every selected rule: {rule id: {option: value}}; a rule that
     #: defers to another (e.g. a cutoff to the overdense route that judges it) reads its limit
     selected_options: dict = field(default_factory=dict)
+    #: a cache kept across the runs of a sweep (rfcheck.sweep), or None: entries are keyed by
+    #: the exact model parts they depend on, so a run reads only what its own model gives
+    shared: dict | None = None
 
     def for_rule(self, rule_id: str, severity: Severity) -> Context:
         """The same shared caches, labelled for one rule."""
         return Context(self.model, self.envelope, rule_id, severity, self._cache,
-                       self.selected_options)
+                       self.selected_options, self.shared)
 
     def option(self, rule_id: str, name: str) -> float | None:
         """Option `name` of another rule, or None when that rule is not selected."""
