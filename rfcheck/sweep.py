@@ -387,7 +387,16 @@ class Chunk:
     problems: dict               # point offset -> why the point is invalid
 
 
-_SHARED: dict = {}  # per process: caches kept across points of one base (Context.shared)
+_SHARED = None  # per process: the analyses kept across points (rfcheck.rules.context.SharedCache)
+
+
+def _shared():
+    global _SHARED
+    if _SHARED is None:
+        from rfcheck.rules.context import SharedCache
+
+        _SHARED = SharedCache()
+    return _SHARED
 
 
 def evaluate_chunk(base: Base, params: tuple[Param, ...], start: int,
@@ -403,7 +412,7 @@ def evaluate_chunk(base: Base, params: tuple[Param, ...], start: int,
     out = Chunk(start, np.zeros(n, np.int8), np.full((n, nr), -1, np.int8),
                 np.full((n, nr), np.nan), np.full((n, nr), np.nan), np.full(n, -1, np.int16),
                 {}, {})
-    shared = None
+    shared = _shared()
     for k, row in enumerate(values):
         data = copy.deepcopy(base.raw)
         try:
