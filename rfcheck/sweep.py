@@ -679,8 +679,9 @@ def summary_text(study: Study) -> str:
         first = min(study.problems)
         lines.append(f"{invalid} point(s) the spec format refuses, e.g. point {first}: "
                      f"{study.problems[first]}")
-    lines.append("A map is a design aid: it does not replace the review of the chosen design "
-                 "under local RF-safety, radiation-protection and electrical codes.")
+    lines.append("This study is a design aid: it does not replace the review of the chosen "
+                 "design (rfcheck check) under local RF-safety, radiation-protection and "
+                 "electrical codes by qualified personnel.")
     return "\n".join(lines)
 
 

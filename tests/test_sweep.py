@@ -239,5 +239,5 @@ def test_sweep_cli_writes_json_and_summary_without_progress_when_not_a_tty(tmp_p
     doc = json.loads(out.read_text())
     assert doc["schema"] == S.SCHEMA_ID and doc["kind"] == "grid"
     assert [p["index"] for p in doc["points"]] == [[0], [1]]
-    assert "2 points" in captured.out and "design aid" in captured.out
+    assert "2 points" in captured.out and "design aid" in captured.out and "local RF-safety" in captured.out
     assert doc["nominal"]["verdict"] in S.VERDICTS
