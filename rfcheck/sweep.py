@@ -762,7 +762,7 @@ def _refuse_bad_corners(study: Study, raw: dict) -> None:
         except InputError as exc:
             shown = ", ".join(f"{p.key} = {_written(v, p.unit, p.dimension, p.integer)}"
                               for p, v in zip(study.params, corner))
-            raise InputError([Problem("--vary", pr.path, pr.line,
+            raise InputError([Problem(pr.file if pr.line else "--vary", pr.path, pr.line,
                                       f"at the grid corner {shown}: {pr.message}")
                               for pr in exc.problems]) from None
 

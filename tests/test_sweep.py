@@ -241,3 +241,37 @@ def test_sweep_cli_writes_json_and_summary_without_progress_when_not_a_tty(tmp_p
     assert [p["index"] for p in doc["points"]] == [[0], [1]]
     assert "2 points" in captured.out and "design aid" in captured.out and "local RF-safety" in captured.out
     assert doc["nominal"]["verdict"] in S.VERDICTS
+
+
+# ---------------------------------------------------------------------- hostile arguments
+
+from hypothesis import HealthCheck, given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+_KEYS = st.sampled_from([
+    "plasma.density.max", "plasma.density", "feed[0].frequency", "feed[coil].power",
+    "feed[9].frequency", "feed[].frequency", "feed[[x]].frequency", "chamber.radius",
+    "chamber.landmarks", "source.name", "magnet.coils[0].current", "..", "", "a" * 300,
+    "plasma.electron_temperature.max", "feed[coil].frequency_tolerance", "schema",
+    "plasma.density.max.extra", "plasma.ions[0].fraction",
+])
+_ENDS = st.one_of(st.sampled_from(["1e17 m^-3", "5e17 cm^-3", "13 MHz", "-1 m^-3", "nan m^-3",
+                                   "inf MHz", "1e400 m^-3", "2 eV", "7", "", " ", "1e17",
+                                   "0x10 MHz", "1_000 MHz", "1e17 m^-3 m^-3", "☃ MHz"]),
+                  st.text(max_size=12))
+_COUNTS = st.sampled_from(["1", "2", "0", "-3", "3.5", "1e3", "x", "", "99999999999"])
+
+
+@settings(max_examples=40, derandomize=True, deadline=None,
+          suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(key=_KEYS, a=_ENDS, b=_ENDS, n=_COUNTS, sep=st.sampled_from([":", "::", "="]))
+def test_hostile_vary_arguments_run_or_exit_2(key, a, b, n, sep, capsys):
+    """Whatever the --vary text: a study that ran (exit 0) or a refusal naming the problem
+    (exit 2); never an internal error or a traceback."""
+    text = f"{key}={a}{sep}{b}{sep}{n}" if sep != "=" else f"{key}{a}{b}{n}"
+    code = main(["sweep", str(ICP), "--vary", text, "--quiet"])
+    err = capsys.readouterr().err
+    assert code in (0, 2), err
+    assert "Traceback" not in err and "internal error" not in err
+    if code == 2:
+        assert err.startswith("error: ")
