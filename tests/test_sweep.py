@@ -275,3 +275,33 @@ def test_hostile_vary_arguments_run_or_exit_2(key, a, b, n, sep, capsys):
     assert "Traceback" not in err and "internal error" not in err
     if code == 2:
         assert err.startswith("error: ")
+
+
+class _NoSharing:
+    """A cache that never keeps anything: every analysis computed afresh for each point."""
+
+    def get(self, name, parts, compute, *, heavy=False):
+        return compute()
+
+
+def test_sharing_analyses_across_points_changes_no_bit(monkeypatch):
+    """The bench reactor (window analyses, coil field model, profiles shared across points):
+    the same statuses, margins and binding rules to the last bit with and without sharing,
+    and the shared cache was used."""
+    from rfcheck.rules.context import SharedCache
+
+    loaded, policy = load_spec(BENCH), load_policy()
+    study = S.grid_study(loaded, policy, ["magnet.coils[upstream].current=60 A:72 A:2",
+                                          "feed[main].frequency=2.43 GHz:2.47 GHz:2"])
+    base = study.base()
+    shared = SharedCache()
+    monkeypatch.setattr(S, "_SHARED", shared)
+    with_sharing = S.evaluate_chunk(base, study.params, 0, study.values)
+    assert shared.hits > 0
+    monkeypatch.setattr(S, "_SHARED", _NoSharing())
+    without = S.evaluate_chunk(base, study.params, 0, study.values)
+    for name in ("verdict", "status", "binding"):
+        assert np.array_equal(getattr(with_sharing, name), getattr(without, name)), name
+    for name in ("margin", "relative"):
+        assert np.array_equal(getattr(with_sharing, name), getattr(without, name),
+                              equal_nan=True), name
