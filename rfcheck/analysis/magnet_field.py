@@ -2,14 +2,21 @@
 profiles for every envelope current scale, the nominal profile and the trap geometry.
 
 Computed once per run and cached in the run's ``_cache`` (keys "field", "axis_profiles",
-"nominal_profile", "trap"), so a run costs one field evaluation, not one per rule.
+"nominal_profile", "trap"), so a run costs one field evaluation, not one per rule; in a sweep
+also kept across runs whose magnet, chamber and current scales are equal to the last bit
+(:func:`rfcheck.analysis.state.memo`; a field model with a multipole is not shared).
 """
 
 from __future__ import annotations
 
 import numpy as np
 
-from .state import RunState
+from .state import RunState, memo
+
+
+def magnet_parts(run: RunState) -> tuple:
+    """The model parts the field analyses read (the key of their entries in a sweep)."""
+    return (run.model.magnet, run.model.chamber, run.envelope.current_scale)
 
 
 def field_model(run: RunState):
@@ -17,27 +24,34 @@ def field_model(run: RunState):
     if "field" not in run._cache:
         from rfcheck.magnet.sources import FieldModel
 
-        run._cache["field"] = FieldModel.for_chamber(run.model.magnet, run.model.chamber)
+        def build():
+            return FieldModel.for_chamber(run.model.magnet, run.model.chamber)
+
+        # a field model with a multipole memoises points across calls (its values then
+        # come from batches that depend on the calls before): shared only without one
+        shared = getattr(run, "shared", None)
+        if shared is not None and not any(
+                type(s).__name__ == "Multipole" for s in run.model.magnet.sources):
+            run._cache["field"] = shared.get("field", magnet_parts(run), build, heavy=True)
+        else:
+            run._cache["field"] = build()
     return run._cache["field"]
 
 
 def axis_profiles(run: RunState):
     """On-axis profiles (rfcheck.magnet.geometry.AxisProfile) for every envelope current scale."""
-    if "axis_profiles" not in run._cache:
-        from rfcheck.magnet.geometry import axis_profiles as _profiles
+    from rfcheck.magnet.geometry import axis_profiles as _profiles
 
-        run._cache["axis_profiles"] = _profiles(field_model(run), run.model.chamber,
-                                                run.envelope.current_scale)
-    return run._cache["axis_profiles"]
+    return memo(run, "axis_profiles", magnet_parts(run), lambda: _profiles(
+        field_model(run), run.model.chamber, run.envelope.current_scale), heavy=True)
 
 
 def nominal_profile(run: RunState):
     """The on-axis profile at current scale 1."""
-    if "nominal_profile" not in run._cache:
-        from rfcheck.magnet.geometry import axis_profile
+    from rfcheck.magnet.geometry import axis_profile
 
-        run._cache["nominal_profile"] = axis_profile(field_model(run), run.model.chamber, 1.0)
-    return run._cache["nominal_profile"]
+    return memo(run, "nominal_profile", magnet_parts(run), lambda: axis_profile(
+        field_model(run), run.model.chamber, 1.0), heavy=True)
 
 
 def axis_z(run: RunState) -> np.ndarray:
@@ -62,9 +76,7 @@ def axis_field(run: RunState, scale: np.ndarray | float | None = None) -> np.nda
 
 def trap_geometries(run: RunState):
     """Trap geometry (B_min, maxima, wall field, last closed |B|) per envelope current scale."""
-    if "trap" not in run._cache:
-        from rfcheck.magnet.geometry import trap_geometries as _geometries
+    from rfcheck.magnet.geometry import trap_geometries as _geometries
 
-        run._cache["trap"] = _geometries(field_model(run), run.model.chamber,
-                                         run.envelope.current_scale)
-    return run._cache["trap"]
+    return memo(run, "trap", magnet_parts(run), lambda: _geometries(
+        field_model(run), run.model.chamber, run.envelope.current_scale), heavy=True)

@@ -7,14 +7,47 @@ shared by every rule, so a run costs one field evaluation, not one per rule.
 
 from __future__ import annotations
 
+import hashlib
+import pickle
+from collections import OrderedDict
 from dataclasses import dataclass, field
 
 import numpy as np
 
 from rfcheck.analysis import magnet_field
 from rfcheck.analysis.envelope import Envelope
+from rfcheck.analysis.state import memo
 from rfcheck.findings import Finding, Quantity, Severity, Status
 from rfcheck.model import SourceModel
+
+
+class SharedCache:
+    """Analyses kept across the runs of a sweep (rfcheck.sweep), keyed by a name and the
+    exact bytes (pickled) of the model parts the analysis reads, so a run gets a shared
+    result only where its own parts are equal to the last bit. Only analyses computed from
+    those parts alone, from scratch, are shared, so a result never depends on which runs came
+    before (serial, local processes and Dask agree). Bounded: at most `light` entries of
+    small results (window analyses), `heavy` of large ones (field models, profiles, traps)."""
+
+    def __init__(self, light: int = 512, heavy: int = 6):
+        self._entries: dict[bool, OrderedDict] = {False: OrderedDict(), True: OrderedDict()}
+        self._limits = {False: light, True: heavy}
+        self.hits = 0
+        self.misses = 0
+
+    def get(self, name: str, parts: tuple, compute, *, heavy: bool = False):
+        key = (name, hashlib.blake2b(pickle.dumps(parts, protocol=5), digest_size=20).digest())
+        entries = self._entries[heavy]
+        if key in entries:
+            entries.move_to_end(key)
+            self.hits += 1
+            return entries[key]
+        self.misses += 1
+        value = compute()
+        entries[key] = value
+        while len(entries) > self._limits[heavy]:
+            entries.popitem(last=False)
+        return value
 
 
 @dataclass
@@ -27,17 +60,26 @@ class Context:
     #: option values (SI) of every selected rule: {rule id: {option: value}}; a rule that
     #: defers to another (e.g. a cutoff to the overdense route that judges it) reads its limit
     selected_options: dict = field(default_factory=dict)
+    #: a cache kept across the runs of a sweep (rfcheck.sweep), or None: entries are keyed by
+    #: the exact model parts they depend on, so a run reads only what its own model gives
+    shared: SharedCache | None = None
 
     def for_rule(self, rule_id: str, severity: Severity) -> Context:
         """The same shared caches, labelled for one rule."""
         return Context(self.model, self.envelope, rule_id, severity, self._cache,
-                       self.selected_options)
+                       self.selected_options, self.shared)
 
     def option(self, rule_id: str, name: str) -> float | None:
         """Option `name` of another rule, or None when that rule is not selected."""
         return self.selected_options.get(rule_id, {}).get(name)
 
     # ---- shared physics (rfcheck.analysis.magnet_field, cached in _cache)
+
+    def memo(self, name: str, parts: tuple, compute, *, heavy: bool = False):
+        """compute() once per run under `name`; in a sweep also once per distinct `parts`
+        (every model part the result depends on), through :class:`SharedCache`
+        (:func:`rfcheck.analysis.state.memo`)."""
+        return memo(self, name, parts, compute, heavy=heavy)
 
     @property
     def field_model(self):
