@@ -387,13 +387,13 @@ class Chunk:
     problems: dict               # point offset -> why the point is invalid
 
 
-_SHARED = None  # per process: the analyses kept across points (rfcheck.rules.context.SharedCache)
+_SHARED = None  # per process: the analyses kept across points (rfcheck.analysis.state.SharedCache)
 
 
 def _shared():
     global _SHARED
     if _SHARED is None:
-        from rfcheck.rules.context import SharedCache
+        from rfcheck.analysis.state import SharedCache
 
         _SHARED = SharedCache()
     return _SHARED

@@ -288,7 +288,7 @@ def test_sharing_analyses_across_points_changes_no_bit(monkeypatch):
     """The bench reactor (window analyses, coil field model, profiles shared across points):
     the same statuses, margins and binding rules to the last bit with and without sharing,
     and the shared cache was used."""
-    from rfcheck.rules.context import SharedCache
+    from rfcheck.analysis.state import SharedCache
 
     loaded, policy = load_spec(BENCH), load_policy()
     study = S.grid_study(loaded, policy, ["magnet.coils[upstream].current=60 A:72 A:2",

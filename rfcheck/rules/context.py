@@ -7,47 +7,15 @@ shared by every rule, so a run costs one field evaluation, not one per rule.
 
 from __future__ import annotations
 
-import hashlib
-import pickle
-from collections import OrderedDict
 from dataclasses import dataclass, field
 
 import numpy as np
 
 from rfcheck.analysis import magnet_field
 from rfcheck.analysis.envelope import Envelope
-from rfcheck.analysis.state import memo
+from rfcheck.analysis.state import SharedCache, memo
 from rfcheck.findings import Finding, Quantity, Severity, Status
 from rfcheck.model import SourceModel
-
-
-class SharedCache:
-    """Analyses kept across the runs of a sweep (rfcheck.sweep), keyed by a name and the
-    exact bytes (pickled) of the model parts the analysis reads, so a run gets a shared
-    result only where its own parts are equal to the last bit. Only analyses computed from
-    those parts alone, from scratch, are shared, so a result never depends on which runs came
-    before (serial, local processes and Dask agree). Bounded: at most `light` entries of
-    small results (window analyses), `heavy` of large ones (field models, profiles, traps)."""
-
-    def __init__(self, light: int = 512, heavy: int = 6):
-        self._entries: dict[bool, OrderedDict] = {False: OrderedDict(), True: OrderedDict()}
-        self._limits = {False: light, True: heavy}
-        self.hits = 0
-        self.misses = 0
-
-    def get(self, name: str, parts: tuple, compute, *, heavy: bool = False):
-        key = (name, hashlib.blake2b(pickle.dumps(parts, protocol=5), digest_size=20).digest())
-        entries = self._entries[heavy]
-        if key in entries:
-            entries.move_to_end(key)
-            self.hits += 1
-            return entries[key]
-        self.misses += 1
-        value = compute()
-        entries[key] = value
-        while len(entries) > self._limits[heavy]:
-            entries.popitem(last=False)
-        return value
 
 
 @dataclass
