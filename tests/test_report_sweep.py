@@ -435,12 +435,17 @@ def test_hostile_spec_text_renders_inert(monkeypatch):
     sweep = make_sweep(n=(7, 5), name=HOSTILE)
     sweep["spec"]["revision"] = "<b>C</b>"
     sweep["spec"]["file"] = '<link rel="stylesheet" href="file:///etc/passwd">'
+    hostile_key = "feed[<script>x</script>].power"  # a key as typed after --vary
+    sweep["axes"][0]["key"] = hostile_key
+    for p in sweep["points"]:
+        p["values"] = {hostile_key if k == X_KEY else k: v for k, v in p["values"].items()}
     html = render_sweep_html(sweep)
     assert "<script>" not in html and '<img src="http' not in html and "<b>C</b>" not in html
     assert "&lt;script&gt;" in html and "49" not in html.split("<body", 1)[1].split("<svg", 1)[0]
     text = _flat("\n".join(_pages(render_sweep_pdf(sweep))))
     # shown as the characters written (a line may break inside the address)
     assert HOSTILE.replace(" ", "") in text.replace(" ", "") and "<b>C</b>" in text
+    assert hostile_key in text
     assert "root:" not in text
     fetcher, = made
     assert fetcher.refused == [] and tried == []
@@ -454,6 +459,14 @@ def test_hostile_spec_text_renders_inert(monkeypatch):
     (lambda s: s["points"][3].update(verdict="ok"), "points[3].verdict"),
     (lambda s: s["points"][0].update(index=[99, 0]), "points[0].index"),
     (lambda s: s.update(shape=[31]), "shape"),
+    (lambda s: s.update(shape=7), "shape"),
+    (lambda s: s["points"].pop(), "points"),
+    (lambda s: s["axes"][1]["values"].__setitem__(2, float("nan")), "axes[1].values"),
+    (lambda s: s.update(kind="monte-carlo", monte_carlo={"samples": 3}), "monte_carlo.seed"),
+    (lambda s: s.update(kind="monte-carlo", monte_carlo={
+        "samples": 3, "seed": 1, "distribution": "uniform",
+        "pass_probability": {"overall": {"p": 0.5}}}), "monte_carlo.pass_probability.overall"),
+    (lambda s: s.update(counts=[1, 2]), "counts"),
 ])
 def test_a_malformed_study_is_refused_naming_the_key(change, key):
     sweep = make_sweep(n=(31, 25))
@@ -461,3 +474,13 @@ def test_a_malformed_study_is_refused_naming_the_key(change, key):
     with pytest.raises(InputError) as err:
         check_sweep(sweep)
     assert any(p.path == key and "expected" in p.message for p in err.value.problems), str(err.value)
+
+
+def test_on_screen_page_fetches_nothing():
+    # the same template for a browser: no file: fonts, no address anywhere
+    html = render_sweep_html(make_sweep(n=(9, 7)), medium="screen")
+    assert "file:" not in html and "http" not in html.replace('xmlns="http://www.w3.org/2000/svg"', "") \
+        .replace('xmlns:xlink="http://www.w3.org/1999/xlink"', "")
+    assert "Operating window" in html and "does not replace" in html
+    with pytest.raises(ValueError, match="medium"):
+        render_sweep_html(make_sweep(n=(3, 3)), medium="print")

@@ -62,7 +62,7 @@ MAX_LINES = len(LINES)
 
 def _plain(text: str) -> str:
     """Text for a matplotlib label: a '$' would start mathtext."""
-    return str(text).replace("\\", "\\\\").replace("$", r"\$")
+    return str(text).replace("$", r"\$")
 
 
 def _label(axis: dict) -> str:
@@ -248,8 +248,9 @@ def operating_window_figure(sweep: dict) -> dict | None:
     _legend_below(ax, handles, ncol=2)
     n1, n2 = verdict.shape
     caption = (f"Operating window over {n1} × {n2} grid points, each cell the verdict of the "
-               "full rule catalogue at that point: " + "; ".join(drawn) + ". A design aid "
-               "between the grid points drawn; a PASS region is no sign-off.")
+               "full rule catalogue at that point: " + "; ".join(drawn) + ". Each cell is drawn "
+               "around its grid point; nothing between the points was evaluated. A design aid: "
+               "a PASS region is no sign-off.")
     return {"id": "operating-window", "title": "Operating window", "caption": caption,
             "svg": _svg(fig, "sweep-window"), "drawn": drawn}
 
@@ -398,7 +399,8 @@ def margin_line_figure(sweep: dict) -> dict | None:
     ax.set_ylabel("relative margin")
     _legend_below(ax, handles, ncol=2, offset=-0.2)
     caption = (f"Verdict and margins along {len(x)} grid points: " + "; ".join(drawn)
-               + ". A design aid between the grid points drawn; a PASS stretch is no sign-off.")
+               + ". Each cell is drawn around its grid point; nothing between the points was "
+                 "evaluated. A design aid: a PASS stretch is no sign-off.")
     return {"id": "margin-line", "title": "Verdict and margins along the axis", "caption": caption,
             "svg": _svg(fig, "sweep-line"), "drawn": drawn}
 

@@ -14,6 +14,7 @@ check and signed off there, under the local codes, by qualified personnel.
 
 from __future__ import annotations
 
+import math
 import os
 
 from rfcheck import jsontext
@@ -60,26 +61,47 @@ def check_sweep(sweep) -> None:
     for k, a in enumerate(axes):
         if not isinstance(a, dict) or not isinstance(a.get("key"), str):
             bad(f"axes[{k}].key", "the spec key swept, as text")
-        elif not isinstance(a.get("values"), list) or not all(
-                isinstance(v, (int, float)) for v in a["values"]):
-            bad(f"axes[{k}].values", "a list of numbers")
+        elif not isinstance(a.get("values"), list) or not a["values"] or not all(
+                isinstance(v, (int, float)) and math.isfinite(v) for v in a["values"]):
+            bad(f"axes[{k}].values", "a non-empty list of finite numbers")
     shape = sweep["shape"]
     if not isinstance(shape, list) or not all(isinstance(n, int) and n > 0 for n in shape):
         bad("shape", "a list of positive integers")
+        shape = []
     elif sweep["kind"] == "grid" and len(shape) != len(axes):
         bad("shape", f"one size per axis ({len(axes)}), found {len(shape)}")
-    if sweep["kind"] == "monte-carlo" and not isinstance(sweep.get("monte_carlo"), dict):
-        bad("monte_carlo", "the Monte Carlo summary of a monte-carlo study")
+    mc = sweep.get("monte_carlo")
+    if sweep["kind"] == "monte-carlo":
+        if not isinstance(mc, dict):
+            bad("monte_carlo", "the Monte Carlo summary of a monte-carlo study")
+        else:
+            for key in ("samples", "seed", "distribution", "pass_probability"):
+                if key not in mc:
+                    bad(f"monte_carlo.{key}", "this key (missing)")
+            prob = mc.get("pass_probability")
+            estimates = ([("overall", prob.get("overall"))]
+                         + list((prob.get("rules") or {}).items()) if isinstance(prob, dict) else [])
+            for name, r in estimates:
+                if not isinstance(r, dict) or not all(
+                        isinstance(r.get(f), (int, float)) for f in ("p", "low", "high", "passes", "n")):
+                    bad(f"monte_carlo.pass_probability.{'' if name == 'overall' else 'rules.'}{name}",
+                        "numbers p, low, high, passes and n")
+    for key in ("counts", "nominal", "tool", "spec", "policy"):
+        if not isinstance(sweep[key], dict):
+            bad(key, "a JSON object")
     points = sweep["points"]
     if not isinstance(points, list):
         bad("points", "a list of points")
         points = []
+    elif not problems and len(points) != math.prod(shape):
+        bad("points", f"one point per grid point or sample ({math.prod(shape)} for the shape "
+                      f"{shape}), found {len(points)}")
     for k, p in enumerate(points):
         if not isinstance(p, dict) or p.get("verdict") not in VERDICTS:
             bad(f"points[{k}].verdict", "one of " + ", ".join(VERDICTS))
             break
         idx = p.get("index")
-        if (not isinstance(idx, list) or len(idx) != len(shape)
+        if shape and (not isinstance(idx, list) or len(idx) != len(shape)
                 or not all(isinstance(i, int) and 0 <= i < n for i, n in zip(idx, shape))):
             bad(f"points[{k}].index", f"{len(shape)} indices within the shape {shape}")
             break
