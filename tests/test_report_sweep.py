@@ -292,8 +292,9 @@ def test_monte_carlo_figures():
 
 
 def test_wilson_interval_of_the_fixture_against_a_known_row():
-    # Wilson (1927) at 95 %: 81 of 263 -> (0.2553, 0.3662) (R. G. Newcombe, Stat. Med. 17,
-    # 857 (1998), table II, example: 81/263, method 3)
+    # the fixture's interval is Wilson's (1927) score interval at 95 %: 81 of 263 ->
+    # (0.2553, 0.3662), the worked example of R. G. Newcombe, Stat. Med. 17, 857 (1998),
+    # "method 3" (quoted from memory)
     w = wilson(81, 263)
     assert w["low"] == pytest.approx(0.2553, abs=1e-4)
     assert w["high"] == pytest.approx(0.3662, abs=1e-4)

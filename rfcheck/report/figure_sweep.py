@@ -18,6 +18,9 @@ what was drawn, so it names nothing that is not in the figure (tests read both).
 verdicts differ by fill (Okabe-Ito tints), by grey level (BT.709 luma 0.91, 0.79, 0.64,
 0.44, 0.33) and by hatching, so they stay apart in greyscale print.
 
+One module for the study's figures (about 500 lines): they share the verdict styles, the
+cell geometry and the caption discipline, and only the sweep report reads them.
+
 A tolerance ``[low, high]`` on an axis is taken as the absolute bounds of the parameter, in
 the axis unit (the range Monte Carlo samples are drawn from).
 """
