@@ -240,6 +240,9 @@ def test_margin_contours_bold_zero_and_hatched_negative_side():
     ids = _ids(fig["svg"])
     assert {"el-margin-fill", "el-margin-zero", "el-margin-negative", "el-nominal"} <= ids
     assert "blank: points without a margin" in fig["caption"]  # the invalid and n-e points
+    # the least margin of the closed form on this grid, 1 - (1.5² + 1.5²) = -3.5, lies below
+    # the shading's floor of -1: the caption names both
+    assert "margins below -1 in its lowest shade, down to -3.5" in fig["caption"]
     # all margins positive: no zero contour is drawn, and the caption says so
     sweep = make_sweep()
     for p in sweep["points"]:

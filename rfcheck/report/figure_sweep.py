@@ -279,22 +279,32 @@ def margin_contour_figure(sweep: dict) -> dict | None:
     lo, hi = float(finite.min()), float(finite.max())
     if hi - lo < 1e-12 * max(1.0, abs(hi)):
         lo, hi = lo - 0.5, hi + 0.5
-    levels = MaxNLocator(10).tick_values(lo, hi)
+    # the shading resolves the margins near zero: below -1 (the limit overshot by more than
+    # its own size) every point takes the lowest shade
+    floor = max(lo, min(-1.0, hi - 1.0))
+    levels = MaxNLocator(10).tick_values(floor, hi)
+    levels = levels[levels >= floor - 1e-12]  # the top level stays at or above the largest
+    if levels.size < 2:
+        levels = np.linspace(floor, hi, 6)
     fig, ax = plt.subplots(figsize=(6.0, 4.2))
     handles, drawn = [], []
     z = np.ma.masked_invalid(margin.T)
-    filled = ax.contourf(x, y, z, levels=levels, cmap="cividis", extend="neither")
+    clipped = lo < levels[0]
+    filled = ax.contourf(x, y, z, levels=levels, cmap="cividis",
+                         extend="min" if clipped else "neither")
     filled.set_gid("el-margin-fill")
     bar = fig.colorbar(filled, ax=ax, pad=0.02)
     bar.set_label("binding relative margin (margin / |limit|)")
     drawn.append("shading and thin contours: the relative margin of the binding rule (the least "
-                 "over the catalogue) at each grid point, on the colour bar")
+                 "over the catalogue) at each grid point, on the colour bar"
+                 + (f" (margins below {levels[0]:g} in its lowest shade, down to {lo:.3g})"
+                    if clipped else ""))
     lines = ax.contour(x, y, z, levels=levels, colors="0.15", linewidths=0.4)
     lines.set_gid("el-margin-lines")
     if lo < 0 < hi:
-        neg = ax.contourf(x, y, z, levels=[lo, 0.0], colors="none", hatches=["/"])
+        neg = ax.contourf(x, y, z, levels=[lo, 0.0], colors="none", hatches=["//"])
         neg.set_gid("el-margin-negative")
-        handles.append(_patch(facecolor="none", hatch="/", edgecolor="black",
+        handles.append(_patch(facecolor="none", hatch="//", edgecolor="black",
                               label="margin below zero"))
         drawn.append("hatched: margin below zero")
         zero = ax.contour(x, y, z, levels=[0.0], colors="black", linewidths=2.4)
