@@ -21,7 +21,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 from harness import print_table  # noqa: E402
 
 BENCHMARKS = ("bench_cli", "bench_scaling", "bench_magnet", "bench_coldplasma", "bench_window",
-              "bench_rays")
+              "bench_rays", "bench_sweep")
 
 
 def main() -> int:

@@ -230,6 +230,86 @@ def diff(old: Path, new: Path, policy_path: Path | None, json_out: str | None,
 
 
 @cli.command()
+@click.argument("spec", type=click.Path(path_type=Path))
+@click.option("--vary", "varies", multiple=True, metavar="KEY=START:STOP:N",
+              help="Vary one spec value over N points, e.g. "
+                   "'magnet.coils[upstream].current=50 A:80 A:31' (repeat for more axes).")
+@click.option("--monte-carlo", "samples", type=int, metavar="N",
+              help="Instead of a grid: N samples of the tolerances the spec declares.")
+@click.option("--seed", type=int, default=1, show_default=True,
+              help="Seed of the Monte Carlo samples (the same seed gives the same study).")
+@click.option("--policy", "policy_path", type=click.Path(path_type=Path),
+              help="Site policy file (thresholds, rule selection, waivers).")
+@click.option("--json", "json_out", metavar="PATH|-", help="Write the study as JSON ('-' for stdout).")
+@click.option("--pdf", "pdf_out", metavar="PATH", type=str,
+              help="Write the study report (operating-window maps, binding rules).")
+@click.option("--jobs", type=int, default=1, show_default=True,
+              help="Local worker processes.")
+@click.option("--scheduler", metavar="ADDRESS",
+              help="Run the chunks on the Dask distributed scheduler at ADDRESS "
+                   "(needs the dask extra; workers must see the spec's files).")
+@click.option("--quiet", is_flag=True, help="No progress line on the terminal.")
+def sweep(spec: Path, varies: tuple[str, ...], samples: int | None, seed: int,
+          policy_path: Path | None, json_out: str | None, pdf_out: str | None, jobs: int,
+          scheduler: str | None, quiet: bool) -> None:
+    """Map where every rule passes over a grid of spec values (--vary), or the pass
+    probability over the declared tolerances (--monte-carlo). Each point is a full check.
+    Exit 0 when the study ran (a map is a design aid, not a review), 2 on bad input."""
+    from rfcheck import sweep as study_mod
+    from rfcheck.outputs import UsageProblem, commit, plan
+    from rfcheck.rules.policy import load_policy
+    from rfcheck.spec import load_spec
+    from rfcheck.text import for_terminal
+
+    if samples is not None and varies:
+        raise UsageProblem("give either --vary or --monte-carlo, not both")
+    if not 1 <= jobs <= 256:
+        raise UsageProblem(f"--jobs {jobs}: expected 1..256 worker processes")
+    if scheduler is not None and jobs != 1:
+        raise UsageProblem("--jobs is for local processes; with --scheduler the cluster's "
+                           "workers run the chunks")
+    plan(_targets(json_out, pdf_out))
+    policy = load_policy(policy_path)
+    loaded = load_spec(spec)
+    if samples is not None:
+        study = study_mod.monte_carlo_study(loaded, policy, samples, seed)
+    else:
+        study = study_mod.grid_study(loaded, policy, list(varies))
+    progress = None
+    if not quiet and sys.stderr.isatty():
+        def progress(done: int, total: int) -> None:
+            end = "\n" if done >= total else ""
+            click.echo(f"\r{done}/{total} points ({100 * done // total} %)", err=True, nl=False)
+            if end:
+                click.echo("", err=True)
+    study_mod.evaluate(study, jobs=jobs, scheduler=scheduler, progress=progress)
+    items = []
+    payload = None
+    if json_out is not None:
+        payload = study.json_bytes()
+        if json_out != "-":
+            items.append(("--json", Path(json_out), payload))
+    if pdf_out is not None:
+        from rfcheck.report.sweep_report import render_sweep_pdf
+
+        items.append(("--pdf", Path(pdf_out), render_sweep_pdf(study.to_json())))
+    if items:
+        commit(items)
+        for opt, path, data in items:
+            what = {"--json": "JSON study", "--pdf": "study PDF"}[opt]
+            click.echo(f"wrote {what} {for_terminal(str(path))} ({_size_text(len(data))})",
+                       err=True)
+    summary = for_terminal(study_mod.summary_text(study))
+    if json_out == "-":
+        sys.stdout.write(payload.decode())
+        sys.stdout.flush()
+        click.echo(summary, err=True)
+    else:
+        click.echo(summary)
+    raise SystemExit(Exit.PASS)
+
+
+@cli.command()
 @click.argument("report", type=click.Path(path_type=Path))
 def verify(report: Path) -> None:
     """Prove an archived rfcheck PDF REPORT from its own attachments: fingerprints, rule set,

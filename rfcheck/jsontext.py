@@ -41,3 +41,8 @@ def _lines(obj, depth: int, pad: str) -> str:
 def dumps(obj) -> str:
     """JSON text of ``obj`` (dicts, lists, str, numbers, bool, None), ending in a newline."""
     return _lines(obj, 0, "") + "\n"
+
+
+def compact(obj) -> str:
+    """One-line JSON text of ``obj`` (the C encoder; no trailing newline)."""
+    return _compact(obj)

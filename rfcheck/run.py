@@ -221,15 +221,23 @@ def sha256_text(text: str) -> str:
     return hashlib.sha256(text.encode("utf-8")).hexdigest()
 
 
-def run(loaded: LoadedSpec, policy: Policy, evaluated_at: dt.datetime | None = None) -> Run:
+def run(loaded: LoadedSpec, policy: Policy, evaluated_at: dt.datetime | None = None, *,
+        detail: bool = True, shared: dict | None = None) -> Run:
     """Evaluate every selected rule on the loaded spec; a rule that raises becomes an error finding.
 
     Waivers are evaluated at `evaluated_at` (an aware date-time; default: now, to the second),
     which the run records (`Run.evaluated_at`), so that `rfcheck verify` can evaluate them at
-    the same instant years later."""
+    the same instant years later.
+
+    With `detail` False (one point of a sweep: rfcheck.sweep) the run is the verdicts only:
+    no characteristics and no second read of the input files (the sweep fingerprints them
+    once). `shared` is a cache the caller keeps across runs of models that differ only in
+    swept values (rfcheck.rules.context.Context.shared); results are the same with or
+    without it."""
     model = loaded.model
-    inputs = input_files(loaded, policy)  # before evaluating: as close to the load as can be
-    ctx = Context(model, Envelope.of(model))
+    # before evaluating: as close to the load as can be
+    inputs = input_files(loaded, policy) if detail else ()
+    ctx = Context(model, Envelope.of(model), shared=shared)
     ctx.selected_options.update({r.id: policy.option_values(r) for r in all_rules()
                                  if policy.selected(r.id)})
     findings: list[Finding] = []
@@ -273,9 +281,12 @@ def run(loaded: LoadedSpec, policy: Policy, evaluated_at: dt.datetime | None = N
                     f = replace(f, message=f"{f.message} [waiver {expired.reference} expired on "
                                            f"{expired.expires}: not applied]")
             findings.append(f)
-    from rfcheck.characteristics import characteristics
+    if detail:
+        from rfcheck.characteristics import characteristics
 
-    chars = characteristics(ctx)
+        chars = characteristics(ctx)
+    else:
+        chars = {}
     return Run(
         spec_name=model.source.name, spec_revision=model.source.revision,
         spec_file=loaded.path.name, spec_sha256=sha256_text(loaded.text), spec_text=loaded.text,

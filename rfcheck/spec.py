@@ -734,6 +734,15 @@ def load_spec(path: str | Path) -> LoadedSpec:
     """Read, validate and convert a spec file. Raises :class:`InputError` listing every problem."""
     path = Path(path)
     raw, text = _read_toml(path, "specification")
+    return spec_from_data(raw, text, path)
+
+
+def spec_from_data(raw: dict, text: str, path: Path) -> LoadedSpec:
+    """Validate and convert the parsed TOML `raw` of the spec file `path` whose text is `text`
+    (line numbers of problems come from `text`). `rfcheck sweep` calls it with a copy of the
+    file's data in which the swept values were replaced; a check of a file holding the same
+    values gives the same model. Raises :class:`InputError` listing every problem."""
+    path = Path(path)
     lines = LineIndex(text)
     problems: list[Problem] = []
     models = _model_names()

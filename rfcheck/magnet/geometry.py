@@ -375,6 +375,58 @@ def _roots(profile: AxisProfile, target: float, lo: np.ndarray, hi: np.ndarray,
     return x
 
 
+def resonance_crossings_many(profile: AxisProfile, b_res_values,
+                             relative_tolerance: float = 0.0) -> list[tuple[Crossing, ...]]:
+    """:func:`resonance_crossings` for several resonance fields on one profile, with one
+    secant iteration for the cells of all of them (each cell's iterates are those it has
+    alone, so the crossings are the same to the last bit) and one field evaluation for all
+    the gradients."""
+    z = profile.z
+    h = 1e-6 * (z[-1] - z[0])
+    b_res_values = [float(b) for b in b_res_values]
+    owners, targets, exact_roots = [], [], []
+    lo, hi, f_lo, f_hi, cell_target, cell_owner = [], [], [], [], [], []
+    for k, b_res in enumerate(b_res_values):
+        for target in (b_res, -b_res):
+            f = profile.b_z - target
+            for r in z[np.nonzero(f == 0.0)[0]]:
+                exact_roots.append((k, target, float(r)))
+            br = np.nonzero(f[:-1] * f[1:] < 0)[0]
+            lo.append(z[br])
+            hi.append(z[br + 1])
+            f_lo.append(f[br])
+            f_hi.append(f[br + 1])
+            cell_target.append(np.full(br.size, target))
+            cell_owner.append(np.full(br.size, k))
+    lo, hi = np.concatenate(lo), np.concatenate(hi)
+    cell_target, cell_owner = np.concatenate(cell_target), np.concatenate(cell_owner)
+    roots = (_roots(profile, cell_target, lo, hi, np.concatenate(f_lo), np.concatenate(f_hi))
+             if lo.size else np.zeros(0))
+    # per resonance field and sign: exact nodes first, then the cells' roots, as alone
+    per: list[list[tuple[float, float]]] = [[] for _ in b_res_values]
+    order: list[tuple[int, float, float]] = []
+    for k, b_res in enumerate(b_res_values):
+        for target in (b_res, -b_res):
+            order += [(k, target, r) for kk, t, r in exact_roots if kk == k and t == target]
+            sel = (cell_owner == k) & (cell_target == target)
+            order += [(k, target, float(r)) for r in roots[sel]]
+    if order:
+        r = np.array([o[2] for o in order])
+        fd = profile.b_z_at(np.concatenate([r + h, r - h]))
+        grads = (fd[:r.size] - fd[r.size:]) / (2 * h)
+        for (k, target, root), g in zip(order, grads):
+            per[k].append((root, float(np.sign(target) * g)))
+    out = []
+    for k, b_res in enumerate(b_res_values):
+        crossings = []
+        for root, grad in sorted(per[k]):
+            half = b_res * relative_tolerance / abs(grad) if grad != 0 else np.inf
+            crossings.append(Crossing(float(root), float(b_res), float(grad), float(half),
+                                      float(2.0 * half)))
+        out.append(tuple(crossings))
+    return out
+
+
 def resonance_crossings(profile: AxisProfile, b_res: float,
                         relative_tolerance: float = 0.0) -> tuple[Crossing, ...]:
     """Where |B| = b_res on the axis, with d|B|/dz and the zone width there.

@@ -160,6 +160,38 @@ def _crossings(s, g, g_at=None):
     return np.sort(np.concatenate([zc, exact]))
 
 
+def _crossings_of(s, conditions: dict, conditions_at) -> dict:
+    """:func:`_crossings` with bisection for several conditions at once: ``conditions`` maps
+    names to samples along s, ``conditions_at(sq)`` gives every condition at points sq (a
+    dict of arrays). The brackets of all conditions are bisected together, one evaluation
+    per step instead of one per condition and step; each bracket follows exactly the steps
+    it would alone (the conditions are evaluated point by point), so the crossings are the
+    same to the last bit."""
+    names = list(conditions)
+    los, his, glos, owner, exacts = [], [], [], [], []
+    for k, name in enumerate(names):
+        g = np.asarray(conditions[name], float)
+        i = np.nonzero(np.sign(g[:-1]) * np.sign(g[1:]) < 0)[0]
+        exacts.append(s[1:-1][g[1:-1] == 0])
+        los.append(s[i])
+        his.append(s[i + 1])
+        glos.append(g[i])
+        owner.append(np.full(i.size, k))
+    lo, hi = np.concatenate(los), np.concatenate(his)
+    g_lo, who = np.concatenate(glos), np.concatenate(owner)
+    if lo.size:
+        pick = np.arange(lo.size)
+        for _ in range(60):
+            mid = 0.5 * (lo + hi)
+            at = conditions_at(mid)
+            vals = np.stack([np.asarray(at[name], float) for name in names])[who, pick]
+            same = np.sign(vals) == np.sign(g_lo)
+            lo, hi = np.where(same, mid, lo), np.where(same, hi, mid)
+    zc = 0.5 * (lo + hi)
+    return {name: np.sort(np.concatenate([zc[who == k], exacts[k]]))
+            for k, name in enumerate(names)}
+
+
 def path_landmarks(z: ArrayLike, b: ArrayLike, n_e: ArrayLike, f: float,
                    theta: float | None = None) -> dict:
     """Crossings of the ECR, UHR, R/L/O cutoffs (and resonance cone at θ) along z.
@@ -261,8 +293,7 @@ def launch_path_access(z: ArrayLike, b: ArrayLike, n_e: ArrayLike, f: float, mod
     def cond_at(sq):
         return _conditions(np.interp(sq, s, xs), np.interp(sq, s, ys), theta)
 
-    landmarks_s = {k: _crossings(s, g, lambda sq, k=k: cond_at(sq)[k])
-                   for k, g in _conditions(xs, ys, theta).items()}
+    landmarks_s = _crossings_of(s, _conditions(xs, ys, theta), cond_at)
 
     # target layer
     if key == "L" and theta is None:

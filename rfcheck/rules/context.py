@@ -7,6 +7,9 @@ rule.
 
 from __future__ import annotations
 
+import hashlib
+import pickle
+from collections import OrderedDict
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -15,6 +18,35 @@ from rfcheck.findings import Finding, Quantity, Severity, Status
 from rfcheck.model import SourceModel
 
 from .envelope import Envelope
+
+
+class SharedCache:
+    """Analyses kept across the runs of a sweep (rfcheck.sweep), keyed by a name and the
+    exact bytes (pickled) of the model parts the analysis reads, so a run gets a shared
+    result only where its own parts are equal to the last bit. Only analyses computed from
+    those parts alone, from scratch, are shared, so a result never depends on which runs came
+    before (serial, local processes and Dask agree). Bounded: at most `light` entries of
+    small results (window analyses), `heavy` of large ones (field models, profiles, traps)."""
+
+    def __init__(self, light: int = 512, heavy: int = 6):
+        self._entries: dict[bool, OrderedDict] = {False: OrderedDict(), True: OrderedDict()}
+        self._limits = {False: light, True: heavy}
+        self.hits = 0
+        self.misses = 0
+
+    def get(self, name: str, parts: tuple, compute, *, heavy: bool = False):
+        key = (name, hashlib.blake2b(pickle.dumps(parts, protocol=5), digest_size=20).digest())
+        entries = self._entries[heavy]
+        if key in entries:
+            entries.move_to_end(key)
+            self.hits += 1
+            return entries[key]
+        self.misses += 1
+        value = compute()
+        entries[key] = value
+        while len(entries) > self._limits[heavy]:
+            entries.popitem(last=False)
+        return value
 
 
 
@@ -28,11 +60,14 @@ class Context:
     #: option values (SI) of every selected rule: {rule id: {option: value}}; a rule that
     #: defers to another (e.g. a cutoff to the overdense route that judges it) reads its limit
     selected_options: dict = field(default_factory=dict)
+    #: a cache kept across the runs of a sweep (rfcheck.sweep), or None: entries are keyed by
+    #: the exact model parts they depend on, so a run reads only what its own model gives
+    shared: SharedCache | None = None
 
     def for_rule(self, rule_id: str, severity: Severity) -> Context:
         """The same shared caches, labelled for one rule."""
         return Context(self.model, self.envelope, rule_id, severity, self._cache,
-                       self.selected_options)
+                       self.selected_options, self.shared)
 
     def option(self, rule_id: str, name: str) -> float | None:
         """Option `name` of another rule, or None when that rule is not selected."""
@@ -40,12 +75,33 @@ class Context:
 
     # ---- shared physics
 
+    def memo(self, name: str, parts: tuple, compute, *, heavy: bool = False):
+        """compute() once per run under `name`; in a sweep also once per distinct `parts`
+        (every model part the result depends on), through :class:`SharedCache`."""
+        if name not in self._cache:
+            self._cache[name] = (compute() if self.shared is None else
+                                 self.shared.get(name, parts, compute, heavy=heavy))
+        return self._cache[name]
+
+    def _magnet_parts(self) -> tuple:
+        return (self.model.magnet, self.model.chamber, self.envelope.current_scale)
+
     @property
     def field_model(self):
         if "field" not in self._cache:
             from rfcheck.magnet.sources import FieldModel
 
-            self._cache["field"] = FieldModel.for_chamber(self.model.magnet, self.model.chamber)
+            def build():
+                return FieldModel.for_chamber(self.model.magnet, self.model.chamber)
+
+            # a field model with a multipole memoises points across calls (its values then
+            # come from batches that depend on the calls before): shared only without one
+            if self.shared is not None and not any(
+                    type(s).__name__ == "Multipole" for s in self.model.magnet.sources):
+                self._cache["field"] = self.shared.get("field", self._magnet_parts(), build,
+                                                       heavy=True)
+            else:
+                self._cache["field"] = build()
         return self._cache["field"]
 
     @property
@@ -69,29 +125,24 @@ class Context:
 
     def axis_profiles(self):
         """On-axis profiles (rfcheck.magnet.geometry.AxisProfile) for every envelope current scale."""
-        if "axis_profiles" not in self._cache:
-            from rfcheck.magnet.geometry import axis_profiles
+        from rfcheck.magnet.geometry import axis_profiles
 
-            self._cache["axis_profiles"] = axis_profiles(
-                self.field_model, self.model.chamber, self.envelope.current_scale)
-        return self._cache["axis_profiles"]
+        return self.memo("axis_profiles", self._magnet_parts(), lambda: axis_profiles(
+            self.field_model, self.model.chamber, self.envelope.current_scale), heavy=True)
 
     def nominal_profile(self):
         """The on-axis profile at current scale 1."""
-        if "nominal_profile" not in self._cache:
-            from rfcheck.magnet.geometry import axis_profile
+        from rfcheck.magnet.geometry import axis_profile
 
-            self._cache["nominal_profile"] = axis_profile(self.field_model, self.model.chamber, 1.0)
-        return self._cache["nominal_profile"]
+        return self.memo("nominal_profile", self._magnet_parts(), lambda: axis_profile(
+            self.field_model, self.model.chamber, 1.0), heavy=True)
 
     def trap_geometries(self):
         """Trap geometry (B_min, maxima, wall field, last closed |B|) per envelope current scale."""
-        if "trap" not in self._cache:
-            from rfcheck.magnet.geometry import trap_geometries
+        from rfcheck.magnet.geometry import trap_geometries
 
-            self._cache["trap"] = trap_geometries(self.field_model, self.model.chamber,
-                                                  self.envelope.current_scale)
-        return self._cache["trap"]
+        return self.memo("trap", self._magnet_parts(), lambda: trap_geometries(
+            self.field_model, self.model.chamber, self.envelope.current_scale), heavy=True)
 
     # ---- finding helpers
 

@@ -125,11 +125,11 @@ def envelope_crossings(ctx: Context, feed, harmonic: int) -> list[list[tuple]]:
     """
     key = ("crossings", feed.id, harmonic)
     if key not in ctx._cache:
-        from rfcheck.magnet.geometry import resonance_crossings
+        from rfcheck.magnet.geometry import resonance_crossings_many
 
-        freqs = ctx.envelope.frequencies(feed)
-        ctx._cache[key] = [[resonance_crossings(p, float(ecr_field(f, harmonic=harmonic)))
-                            for f in freqs] for p in ctx.axis_profiles()]
+        fields = [float(ecr_field(f, harmonic=harmonic))
+                  for f in ctx.envelope.frequencies(feed)]
+        ctx._cache[key] = [resonance_crossings_many(p, fields) for p in ctx.axis_profiles()]
     return ctx._cache[key]
 
 

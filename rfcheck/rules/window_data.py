@@ -246,30 +246,35 @@ def window_analysis(ctx, window: Window) -> WindowAnalysis:
 
     ValueError for an unknown material or more than MAX_LAYERS layers.
     """
-    key = ("window-analysis", window.id)
-    if key not in ctx._cache:
-        model = ctx.model
-        feed = model.feed(window.feed)
-        line = line_from_name(feed.line)
-        emb = line_embedding(line)
-        if len(window.layers) > MAX_LAYERS:
-            raise ValueError(f"window {window.id} has {len(window.layers)} layers; the window "
-                             f"analysis evaluates at most {MAX_LAYERS}")
-        materials = tuple(resolve_material(model, la.material) for la in window.layers)
-        f = _frequencies(feed)
-        # loss tangents at the top of the band, where the ∝ f rule makes them largest
-        f_top = float(f.max())
-        spreads = tuple(material_spread(m, f_top) for m in materials)
-        box = tuple(LayerSpread((la.thickness - la.thickness_tolerance, la.thickness,
-                                 la.thickness + la.thickness_tolerance), sp.eps_r, sp.tan_delta)
-                    for la, sp in zip(window.layers, spreads))
-        nominal = np.array([[[b.thickness[1], b.eps_r[1], b.tan_delta[1]] for b in box]])
-        g, a = spread_response(f, nominal, emb)
-        reflection = worst_over_spread(f, box, emb, quantity="reflection")
-        absorption = worst_over_spread(f, box, emb, quantity="absorption")
-        ctx._cache[key] = WindowAnalysis(window, feed, line, emb, materials, spreads, box, f,
-                                         np.abs(g[0]), a[0], reflection, absorption)
-    return ctx._cache[key]
+    model = ctx.model
+    # the parts it reads: the window, its feed (frequency band, line) and the materials
+    return ctx.memo(("window-analysis", window.id),
+                    (window, model.feed(window.feed), model.materials),
+                    lambda: _window_analysis(model, window))
+
+
+def _window_analysis(model, window: Window) -> WindowAnalysis:
+    """The computation of :func:`window_analysis` from the model alone."""
+    feed = model.feed(window.feed)
+    line = line_from_name(feed.line)
+    emb = line_embedding(line)
+    if len(window.layers) > MAX_LAYERS:
+        raise ValueError(f"window {window.id} has {len(window.layers)} layers; the window "
+                         f"analysis evaluates at most {MAX_LAYERS}")
+    materials = tuple(resolve_material(model, la.material) for la in window.layers)
+    f = _frequencies(feed)
+    # loss tangents at the top of the band, where the ∝ f rule makes them largest
+    f_top = float(f.max())
+    spreads = tuple(material_spread(m, f_top) for m in materials)
+    box = tuple(LayerSpread((la.thickness - la.thickness_tolerance, la.thickness,
+                             la.thickness + la.thickness_tolerance), sp.eps_r, sp.tan_delta)
+                for la, sp in zip(window.layers, spreads))
+    nominal = np.array([[[b.thickness[1], b.eps_r[1], b.tan_delta[1]] for b in box]])
+    g, a = spread_response(f, nominal, emb)
+    reflection = worst_over_spread(f, box, emb, quantity="reflection")
+    absorption = worst_over_spread(f, box, emb, quantity="absorption")
+    return WindowAnalysis(window, feed, line, emb, materials, spreads, box, f,
+                          np.abs(g[0]), a[0], reflection, absorption)
 
 
 def embedding_text(a: WindowAnalysis) -> str:
