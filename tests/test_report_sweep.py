@@ -118,7 +118,9 @@ def make_sweep(kind: str = "grid", n: tuple = (31, 25), *, tolerance: bool = Tru
         rng = np.random.default_rng(seed)
         xs = rng.uniform(*tol_x, samples)
         ys = rng.uniform(*tol_y, samples)
-        axes = [_axis(X_KEY, X_UNIT, xs, X0, tol_x), _axis(Y_KEY, Y_UNIT, ys, Y0, tol_y)]
+        # as rfcheck sweep writes them: a sampled parameter's values are in the points only
+        axes = [dict(_axis(X_KEY, X_UNIT, [], X0, tol_x), values=None),
+                dict(_axis(Y_KEY, Y_UNIT, [], Y0, tol_y), values=None)]
         points = [_point([k], {X_KEY: float(x), Y_KEY: float(y)})
                   for k, (x, y) in enumerate(zip(xs, ys))]
         shape = [samples]
@@ -144,7 +146,10 @@ def make_sweep(kind: str = "grid", n: tuple = (31, 25), *, tolerance: bool = Tru
         "tool": {"name": "rfcheck", "version": "0.1.0", "ruleset": "2026.12"},
         "spec": {"name": name, "revision": "C", "file": "bench-ecr.toml", "sha256": "ab" * 32},
         "policy": {"name": "default", "sha256": "cd" * 32},
-        "axes": axes, "shape": shape, "points": points,
+        "evaluated_at": "2026-12-03T12:00:00+00:00",
+        "axes": axes, "shape": shape, "rules": list(RULES), "points": points,
+        "notes": (["the magnet's current tolerance stays in each sample's envelope"]
+                  if kind == "monte-carlo" else []),
         "nominal": {"values": nominal["values"], "verdict": nominal["verdict"],
                     "binding": nominal["binding"]},
         "counts": counts, "monte_carlo": mc,
@@ -394,6 +399,9 @@ def test_pdf_pages_carry_ink_and_the_words_and_ids_unbroken(kind):
         overall = sweep["monte_carlo"]["pass_probability"]["overall"]
         assert f"{overall['p']:.3f}" in cover and f"{overall['low']:.3f}" in cover
         assert "Correlation of each parameter with failure" in flat
+        assert "the magnet's current tolerance stays in each sample's envelope" in cover
+        xs = [p["values"][X_KEY] for p in sweep["points"]]
+        assert f"{min(xs):.4g} to {max(xs):.4g}" in cover  # the sampled range, from the points
         for c in sweep["monte_carlo"]["correlation"]:
             assert f"{c['coefficient']:+.3f}" in flat
 
@@ -488,3 +496,38 @@ def test_on_screen_page_fetches_nothing():
     assert "Operating window" in html and "does not replace" in html
     with pytest.raises(ValueError, match="medium"):
         render_sweep_html(make_sweep(n=(3, 3)), medium="print")
+
+
+def test_undefined_correlations_are_shown_as_such():
+    # rfcheck sweep writes a null coefficient where no sample failed (Pearson's r has a zero
+    # variance in its denominator then)
+    sweep = make_sweep("monte-carlo", samples=50)
+    for c in sweep["monte_carlo"]["correlation"]:
+        c["coefficient"] = None
+    html = render_sweep_html(sweep)
+    table = html[html.index('<table class="findings correlation">'):]
+    assert table[:table.index("</table>")].count('<td class="num">undefined</td>') == 2
+    fig = fs.sample_figure(sweep)
+    assert "no correlation with failure is defined" in fig["caption"]
+    assert "most correlated" not in fig["caption"]
+
+
+def test_a_study_written_by_rfcheck_sweep_is_read_and_drawn():
+    # the dict of the real command (a 3 x 2 grid and 4 samples of the bench reactor), read
+    # as it comes: every figure of its kind and the whole page, nothing refused
+    from conftest import DEMO
+    from rfcheck import sweep as S
+    from rfcheck.rules.policy import load_policy
+    from rfcheck.spec import load_spec
+
+    loaded, policy = load_spec(DEMO), load_policy(None)
+    grid = S.evaluate(S.grid_study(loaded, policy, ["magnet.coils[upstream].current=60 A:72 A:3",
+                                                    "feed[main].frequency=2.44 GHz:2.46 GHz:2"]))
+    mc = S.evaluate(S.monte_carlo_study(loaded, policy, 4, seed=1))
+    for study, ids in ((grid, ["operating-window", "margin-contours"]),
+                       (mc, ["pass-probability", "samples"])):
+        data = study.to_json()
+        check_sweep(data)
+        assert [f["id"] for f in fs.sweep_figures(data)] == ids
+        html = render_sweep_html(data)
+        assert data["spec"]["sha256"] in html and "is not a sign-off" in _flat(html)

@@ -186,8 +186,11 @@ def _nominal_and_box(plt, ax, sweep, ax_x, ax_y, handles, drawn):
                 zorder=6, gid="el-nominal")
         handles.append(plt.Line2D([], [], marker="*", ms=10, mfc="white", mec="black",
                                   ls="none", label=f"nominal ({x0:.4g}, {y0:.4g})"))
-        drawn.append(f"star: the nominal point ({x0:.4g} {ax_x.get('unit', '')}, "
-                     f"{y0:.4g} {ax_y.get('unit', '')})")
+        drawn.append(f"star: the nominal point ({_with_unit(x0, ax_x)}, {_with_unit(y0, ax_y)})")
+
+
+def _with_unit(value: float, axis: dict) -> str:
+    return f"{value:.4g} {axis.get('unit') or ''}".rstrip()
 
 
 def _two_axes(sweep: dict) -> bool:
@@ -462,8 +465,10 @@ def sample_figure(sweep: dict) -> dict | None:
     if sweep.get("kind") != "monte-carlo" or not sweep.get("axes"):
         return None
     axes = {a["key"]: a for a in sweep["axes"]}
-    order = [c["key"] for c in (sweep.get("monte_carlo") or {}).get("correlation", ())
-             if c["key"] in axes]
+    # a null coefficient is undefined (no sample failed, or every one did): not an order
+    order = [c["key"] for c in (sweep.get("monte_carlo") or {}).get("correlation") or ()
+             if c["key"] in axes and c.get("coefficient") is not None]
+    correlated = bool(order)
     order += [k for k in axes if k not in order]
     plt = _mpl()
     fig, ax = plt.subplots(figsize=(6.0, 4.0))
@@ -487,7 +492,8 @@ def sample_figure(sweep: dict) -> dict | None:
     if ax_y:
         _nominal_and_box(plt, ax, sweep, ax_x, ax_y, handles, drawn)
         ax.set_ylabel(_label(ax_y))
-        what = "the two sampled parameters most correlated with failure"
+        what = ("the two sampled parameters most correlated with failure" if correlated else
+                "the first two sampled parameters (no correlation with failure is defined)")
     else:
         ax.axhline(0.0, color="black", lw=2.0, gid="el-margin-zero")
         drawn.append("bold line: zero margin")

@@ -61,9 +61,12 @@ def check_sweep(sweep) -> None:
     for k, a in enumerate(axes):
         if not isinstance(a, dict) or not isinstance(a.get("key"), str):
             bad(f"axes[{k}].key", "the spec key swept, as text")
+        elif sweep["kind"] == "monte-carlo" and a.get("values") is None:
+            continue  # the samples are in the points
         elif not isinstance(a.get("values"), list) or not a["values"] or not all(
                 isinstance(v, (int, float)) and math.isfinite(v) for v in a["values"]):
-            bad(f"axes[{k}].values", "a non-empty list of finite numbers")
+            bad(f"axes[{k}].values", "a non-empty list of finite numbers"
+                + (" (or null: the samples are in the points)" if sweep["kind"] == "monte-carlo" else ""))
     shape = sweep["shape"]
     if not isinstance(shape, list) or not all(isinstance(n, int) and n > 0 for n in shape):
         bad("shape", "a list of positive integers")
@@ -117,7 +120,11 @@ def _axis_rows(sweep: dict) -> list[dict]:
     rows = []
     nominal = (sweep.get("nominal") or {}).get("values", {})
     for a in sweep["axes"]:
-        values = [float(v) for v in a["values"]]
+        if a.get("values") is not None:
+            values = [float(v) for v in a["values"]]
+        else:  # Monte Carlo: the sampled values are in the points
+            values = [float(p["values"][a["key"]]) for p in sweep["points"]
+                      if isinstance(p.get("values", {}).get(a["key"]), (int, float))]
         tol = a.get("tolerance")
         nom = nominal.get(a["key"], a.get("nominal"))
         rows.append({"key": a["key"], "unit": a.get("unit") or "",
@@ -195,8 +202,9 @@ def _monte_carlo(sweep: dict) -> dict | None:
             "overall": _interval(prob["overall"]),
             "rules": [{"rule": rid, **_interval(r)} for rid, r in rules if r.get("n")],
             "idle": [rid for rid, r in rules if not r.get("n")],
-            "correlation": [{"key": c["key"], "coefficient": f"{c['coefficient']:+.3f}"}
-                            for c in mc.get("correlation", ())]}
+            # a coefficient is null where it is undefined (no sample failed, or every one did)
+            "correlation": [{"key": c["key"], "coefficient": "undefined" if c.get("coefficient") is None
+                             else f"{c['coefficient']:+.3f}"} for c in mc.get("correlation") or ()]}
 
 
 def sweep_context(sweep: dict, medium: str = "pdf") -> dict:
@@ -223,6 +231,8 @@ def sweep_context(sweep: dict, medium: str = "pdf") -> dict:
         "mc": _monte_carlo(sweep), "cautions": shown, "verdict_words": VERDICT_WORDS,
         "medium": medium, "font_dir": render._font_dir().as_uri() if medium == "pdf" else "",
         "attachment": SWEEP_ATTACHMENT, "max_rows": MAX_ROWS,
+        "evaluated_at": str(sweep.get("evaluated_at") or ""),
+        "notes": [str(n) for n in sweep.get("notes") or ()],
     }
 
 
