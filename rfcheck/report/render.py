@@ -145,6 +145,14 @@ def render_pdf(run) -> bytes:
             string=run.policy_texts[0][1], name=default_policy,
             description="review policy: the shipped defaults", created=_EPOCH, modified=_EPOCH,
             relationship="Source"))
+    return write_archival_pdf(html, attachments)
+
+
+def write_archival_pdf(html: str, attachments: list) -> bytes:
+    """PDF/A-3b bytes of `html` (packaged resources only) with `attachments`
+    (weasyprint.Attachment), the same bytes for the same input whenever it is written."""
+    import weasyprint
+
     doc = weasyprint.HTML(string=html, base_url=templates_dir().as_uri() + "/",
                           url_fetcher=_fetcher())
     # fontTools, which weasyprint subsets fonts with where HarfBuzz's subsetter is missing,

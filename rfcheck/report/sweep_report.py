@@ -15,7 +15,6 @@ check and signed off there, under the local codes, by qualified personnel.
 from __future__ import annotations
 
 import math
-import os
 
 from rfcheck import jsontext
 from rfcheck.spec import InputError, Problem
@@ -258,17 +257,4 @@ def render_sweep_pdf(sweep: dict) -> bytes:
         string=jsontext.dumps(sweep), name=SWEEP_ATTACHMENT,
         description=f"sweep results ({SCHEMA} JSON)", created=render._EPOCH,
         modified=render._EPOCH, relationship="Data")
-    doc = weasyprint.HTML(string=html, base_url=render.templates_dir().as_uri() + "/",
-                          url_fetcher=render._fetcher())
-    # as render.render_pdf: the font subsets take SOURCE_DATE_EPOCH as their timestamp, so
-    # it is pinned to the fixed epoch while the PDF is written and restored after
-    saved = os.environ.get("SOURCE_DATE_EPOCH")
-    os.environ["SOURCE_DATE_EPOCH"] = str(int(render._EPOCH.timestamp()))
-    try:
-        return doc.write_pdf(pdf_variant="pdf/a-3b", attachments=[attachment],
-                             pdf_identifier=True, custom_metadata=True)
-    finally:
-        if saved is None:
-            del os.environ["SOURCE_DATE_EPOCH"]
-        else:
-            os.environ["SOURCE_DATE_EPOCH"] = saved
+    return render.write_archival_pdf(html, [attachment])
