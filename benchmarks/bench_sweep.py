@@ -13,7 +13,8 @@ points per second, and the peak memory of the evaluation (no JSON written: the s
 only) at N x N and at about a quarter of the points (target: flat, ratio <= 1.2).
 
     python benchmarks/bench_sweep.py [--quick]       # --quick: 3 x 3 (checks that it runs)
-    RFCHECK_SWEEP_SIDE=101 python benchmarks/bench_sweep.py   # the full 101 x 101 map
+    RFCHECK_SWEEP_SIDE=101 RFCHECK_SWEEP_REPEAT=1 python benchmarks/bench_sweep.py
+                                                     # the full 101 x 101 map (~15 min)
 """
 
 from __future__ import annotations
@@ -43,7 +44,7 @@ def measure(quick: bool = False) -> list[Row]:
 
     side = 3 if quick else int(os.environ.get("RFCHECK_SWEEP_SIDE", "21"))
     jobs = 1 if quick else int(os.environ.get("RFCHECK_SWEEP_JOBS", "2"))
-    repeat = 1 if quick else 3
+    repeat = 1 if quick else int(os.environ.get("RFCHECK_SWEEP_REPEAT", "3"))
     points = side * side
     with tempfile.TemporaryDirectory() as tmp:
         raw = tomllib.loads(SPEC.read_text())
