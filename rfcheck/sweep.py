@@ -295,10 +295,30 @@ def _tolerance_of(path: tuple, raw: dict, nominal: float, unit: str,
     return None
 
 
+def _plus_minus(key: str, raw: dict, at: tuple, name: str, tol_name: str, dimension: str,
+                zero: str) -> list[Param]:
+    """The value `name` of the table at `at` with its declared ± tolerance `tol_name`, as a
+    Monte Carlo parameter in the value's own unit (none when no tolerance is declared)."""
+    from rfcheck.units import parse_quantity, scale_to_si
+
+    table = raw
+    for part in at:
+        table = table[part]
+    text = table.get(tol_name)
+    tol = parse_quantity(text, dimension) if text else 0.0
+    if tol <= 0:
+        return []
+    unit = _split(table[name])[1]
+    per = scale_to_si(unit, dimension)
+    nominal = parse_quantity(table[name], dimension) / per
+    return [Param(key, unit, nominal, "set", at + (name,), dimension,
+                  tolerance=(nominal - tol / per, nominal + tol / per),
+                  clear=((at + (tol_name,), zero),))]
+
+
 def tolerance_params(loaded: LoadedSpec, raw: dict) -> tuple[list[Param], list[str]]:
     """The declared tolerances of a spec as Monte Carlo parameters, and notes on what stays
     in each sample's envelope instead of being sampled."""
-    from rfcheck.units import parse_quantity, scale_to_si
 
     model = loaded.model
     params: list[Param] = []
@@ -314,35 +334,13 @@ def tolerance_params(loaded: LoadedSpec, raw: dict) -> tuple[list[Param], list[s
                                 tolerance=(1 - tol, 1 + tol),
                                 clear=((("magnet", "current_tolerance"), "0 %"),)))
     for i, f in enumerate(raw.get("feed") or []):
-        text = f.get("frequency_tolerance")
-        if not text:
-            continue
-        ftol = parse_quantity(text, "frequency")
-        if ftol <= 0:
-            continue
-        value, unit = _split(f["frequency"])
-        per = scale_to_si(unit, "frequency")
-        nominal = parse_quantity(f["frequency"], "frequency") / per
-        params.append(Param(f"feed[{f.get('id', i)}].frequency", unit, nominal, "set",
-                            ("feed", i, "frequency"), "frequency",
-                            tolerance=(nominal - ftol / per, nominal + ftol / per),
-                            clear=((("feed", i, "frequency_tolerance"), "0 Hz"),)))
+        params += _plus_minus(f"feed[{f.get('id', i)}].frequency", raw, ("feed", i),
+                              "frequency", "frequency_tolerance", "frequency", "0 Hz")
     for i, w in enumerate(raw.get("window") or []):
-        for j, layer in enumerate(w.get("layers") or []):
-            text = layer.get("thickness_tolerance")
-            if not text:
-                continue
-            ttol = parse_quantity(text, "length")
-            if ttol <= 0:
-                continue
-            value, unit = _split(layer["thickness"])
-            per = scale_to_si(unit, "length")
-            nominal = parse_quantity(layer["thickness"], "length") / per
-            params.append(Param(f"window[{w.get('id', i)}].layers[{j}].thickness", unit,
-                                nominal, "set", ("window", i, "layers", j, "thickness"),
-                                "length", tolerance=(nominal - ttol / per, nominal + ttol / per),
-                                clear=((("window", i, "layers", j, "thickness_tolerance"),
-                                        "0 mm"),)))
+        for j in range(len(w.get("layers") or [])):
+            params += _plus_minus(f"window[{w.get('id', i)}].layers[{j}].thickness", raw,
+                                  ("window", i, "layers", j), "thickness",
+                                  "thickness_tolerance", "length", "0 mm")
     for i, mt in enumerate(raw.get("material") or []):
         for name, rng_key in (("permittivity", "permittivity_range"),
                               ("loss_tangent", "loss_tangent_range")):
