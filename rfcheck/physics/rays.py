@@ -111,11 +111,12 @@ def _common_arguments(frequency, max_length, mode, max_evaluations) -> tuple[flo
     return f, key
 
 
-def _medium(b_field, density):
-    """(field vectors, non-negative densities) of the user's callables at (N, 3) points."""
-    def medium(points):
-        b = np.asarray(b_field(points), dtype=float).reshape(-1, 3)
-        n = np.asarray(density(points), dtype=float).reshape(-1)
+def _medium(b_field, density, grouped: bool = False):
+    """(field vectors, non-negative densities) of the user's callables at (N, 3) points
+    (with `grouped`, called as ``medium(points, group)`` and passing the group on)."""
+    def medium(points, *group):
+        b = np.asarray(b_field(points, *group), dtype=float).reshape(-1, 3)
+        n = np.asarray(density(points, *group), dtype=float).reshape(-1)
         return b, np.maximum(n, 0.0)
 
     return medium
@@ -214,6 +215,21 @@ class GridField:
         self.points = len(pts)
         self._coef = [spline_filter(vals[:, c].reshape(shape), order=3, mode="nearest")
                       for c in range(self.components)]
+
+    def combined(self, weights) -> "GridField":
+        """The grid of the linear combinations ``values @ weights.T`` ((M, C) weights: M new
+        components), without sampling again: the spline coefficients are linear in the
+        sampled values, so combining them gives the interpolant of the combined values
+        (to rounding). One call then interpolates M components instead of C."""
+        w = np.asarray(weights, dtype=float)
+        if w.ndim != 2 or w.shape[1] != self.components or not np.all(np.isfinite(w)):
+            raise ValueError(f"weights must be a finite (M, {self.components}) array")
+        out = object.__new__(GridField)
+        out.step, out.low, out.shape, out.points = self.step, self.low, self.shape, self.points
+        out.components = w.shape[0]
+        out._coef = [sum(wi * c for wi, c in zip(row, self._coef) if wi != 0.0)
+                     + np.zeros(self.shape) for row in w]
+        return out
 
     def __call__(self, points) -> np.ndarray:
         from scipy.ndimage import map_coordinates
@@ -461,7 +477,7 @@ def trace_rays(frequency: float, starts, directions, mode: str, b_field, density
                rtol: float = 1e-8, max_step: float | None = None,
                max_evaluations: int = 20_000, h_position: float = 1e-6,
                h_index: float = 1e-7, cyclotron_field: float | None = None,
-               cyclotron_band: float = 1e-3) -> tuple[Ray, ...]:
+               cyclotron_band: float = 1e-3, groups=None) -> tuple[Ray, ...]:
     """Trace a bundle of K rays together, one field and one density call per step for all.
 
     The same equations and stops as :func:`trace_ray`, integrated as one system: a ray whose
@@ -478,8 +494,14 @@ def trace_rays(frequency: float, starts, directions, mode: str, b_field, density
     at the layer's edge in a bounded number of steps, where the kinetic absorption of
     :mod:`rfcheck.physics.absorption` takes over (Doppler-broadened layers are wider than
     the default band of 1e-3 in |B| for any electron temperature above a few eV).
+
+    `groups` ((K,) non-negative integers, optional): rays of different media traced as one
+    bundle (e.g. the corners of an envelope). Each ray belongs to group ``groups[i]``;
+    ``b_field(points, group)`` and ``density(points, group)`` are then called with the (N,)
+    group of each point as a second argument, and `collision_frequency` may be a sequence
+    with one ν per group. Every ray keeps its own steps, so a ray's path is the one it has
+    when its group is traced alone; the bundle shares the calls (and `max_evaluations`).
     """
-    from scipy.integrate import solve_ivp
 
     f, key = _common_arguments(frequency, max_length, mode, max_evaluations)
     r0 = np.asarray(starts, dtype=float).reshape(-1, 3)
@@ -497,12 +519,28 @@ def trace_rays(frequency: float, starts, directions, mode: str, b_field, density
     d0 = d0 / norms[:, None]
     k_rays = r0.shape[0]
     omega_c = 2.0 * math.pi * f / C_LIGHT
-    nu = float(collision_frequency)
-
     n2 = _branch(f, key, ions)
-    medium = _medium(b_field, density)
+    if groups is None:
+        nu = float(collision_frequency)
+        nu_of = lambda rays: nu  # noqa: E731
+        medium_of = _medium(b_field, density)
+        medium = lambda points, rays: medium_of(points)  # noqa: E731
+    else:
+        group = np.asarray(groups).reshape(-1)
+        if group.shape != (k_rays,) or not np.issubdtype(group.dtype, np.integer) \
+                or np.any(group < 0):
+            raise ValueError("groups must hold one non-negative integer per ray")
+        nus = np.broadcast_to(np.asarray(collision_frequency, dtype=float).reshape(-1),
+                              (int(group.max()) + 1,)).copy()
+        nu = float(nus.max())
+        nu_of = lambda rays: nus[group[rays]]  # noqa: E731
+        medium_of = _medium(b_field, density, grouped=True)
+        medium = lambda points, rays: medium_of(points, group[rays])  # noqa: E731
+    if not (np.all(np.isfinite(nu)) and np.all(np.asarray(nu) >= 0)):
+        raise ValueError("collision_frequency must be finite and non-negative (s^-1)")
+    everyone = np.arange(k_rays)
 
-    b_s, n_s = medium(r0)
+    b_s, n_s = medium(r0, everyone)
     n2_s = np.real(np.asarray(n2(b_s, n_s, d0))).reshape(-1)
     alive = (n2_s > 0) & np.isfinite(n2_s)
     nvec0 = d0 * np.sqrt(np.where(alive, n2_s, 0.0))[:, None]
@@ -526,7 +564,7 @@ def trace_rays(frequency: float, starts, directions, mode: str, b_field, density
                                                                   dtype=float).reshape(-1)
         if cyclotron_field is not None:
             if bmag is None:
-                bmag = np.linalg.norm(medium(r)[0], axis=1)
+                bmag = np.linalg.norm(medium(r, idx)[0], axis=1)
             sgn = side[idx]
             edge = cyclotron_field * (1.0 + sgn * cyclotron_band)
             conditions["cyclotron_layer"] = sgn * (edge - bmag)
@@ -534,12 +572,13 @@ def trace_rays(frequency: float, starts, directions, mode: str, b_field, density
             out = np.where((out == "") & (g >= 0), name, out)
         return out, conditions
 
-    def rhs(y):
-        """(dy/dτ, |B| at r) for rows y (A, 8): 7 medium points per ray, one call for all."""
+    def rhs(y, rays):
+        """(dy/dτ, |B| at r) for rows y (A, 8) of the rays `rays`: 7 medium points per ray,
+        one call for all."""
         dy = np.zeros_like(y)
         r, nv = y[:, :3], y[:, 3:6]
         pts = (r[:, None, :] + h_position * _OFFSETS[None, :, :]).reshape(-1, 3)
-        b, n_e = medium(pts)
+        b, n_e = medium(pts, np.repeat(rays, 7))
         b, n_e = b.reshape(-1, 7, 3), n_e.reshape(-1, 7)
         hn = h_index * np.maximum(np.linalg.norm(nv, axis=1), 1.0)
         eye = np.eye(3)[None, :, :] * hn[:, None, None]
@@ -557,10 +596,12 @@ def trace_rays(frequency: float, starts, directions, mode: str, b_field, density
         dh_dn[~good], dh_dr[~good], speed[~good] = 0.0, 0.0, 0.0
         dy[:, :3], dy[:, 3:6], dy[:, 7] = dh_dn, -dh_dr, speed
         if nu > 0:
-            n2c = np.asarray(n2(b[:, 0], n_e[:, 0], nv, nu))
+            nu_r = nu_of(rays)
+            n2c = np.asarray(n2(b[:, 0], n_e[:, 0], nv, nu_r))
             k_i = omega_c * np.abs(np.sqrt(n2c.astype(complex)).imag)
             nhat = nv / np.maximum(np.linalg.norm(nv, axis=1), 1e-300)[:, None]
-            dy[:, 6] = -2.0 * k_i * np.abs(np.einsum("ij,ij->i", nhat, dh_dn))
+            dy[:, 6] = np.where(nu_r > 0, -2.0 * k_i * np.abs(np.einsum("ij,ij->i", nhat,
+                                                                         dh_dn)), 0.0)
         return dy, np.linalg.norm(b[:, 0], axis=1), good
 
     y0 = np.concatenate([r0, nvec0, np.zeros((k_rays, 2))], axis=1)
@@ -573,8 +614,10 @@ def trace_rays(frequency: float, starts, directions, mode: str, b_field, density
     diag = {}
     if live:
         paths = np.concatenate([history[i][0] for i in live])
-        res_all, go_all = _diagnostics_rows(n2, medium, paths[:, :3], paths[:, 3:6], omega_c,
-                                            h_position)
+        owner = np.repeat(np.asarray(live), [len(history[i][0]) for i in live])
+        res_all, go_all = _diagnostics_rows(
+            n2, lambda points: medium(points, np.repeat(owner, 7)), paths[:, :3],
+            paths[:, 3:6], omega_c, h_position)
         at = 0
         for i in live:
             m_i = len(history[i][0])
@@ -614,7 +657,7 @@ def _bundle_steps(rhs, stopped, y0: np.ndarray, alive: np.ndarray, h_max: float,
     h = np.full(act.size, 0.1 * h_max)
     calls = 0
     if act.size:
-        f0, _, _ = rhs(y)
+        f0, _, _ = rhs(y, act)
         calls += 1
     while act.size and calls + 6 <= budget:
         n_a = act.size
@@ -622,9 +665,9 @@ def _bundle_steps(rhs, stopped, y0: np.ndarray, alive: np.ndarray, h_max: float,
         k[0] = f0
         for st in range(1, 6):
             dy = np.einsum("s,sij->ij", a_tab[st, :st], k[:st]) if st > 1 else a_tab[1, 0] * k[0]
-            k[st], _, _ = rhs(y + h[:, None] * dy)
+            k[st], _, _ = rhs(y + h[:, None] * dy, act)
         y_new = y + h[:, None] * np.einsum("s,sij->ij", b_tab, k[:6])
-        k[6], bmag, good = rhs(y_new)
+        k[6], bmag, good = rhs(y_new, act)
         calls += 6
         err = h[:, None] * np.einsum("s,sij->ij", e_tab, k)
         scale = atol + rtol * np.maximum(np.abs(y), np.abs(y_new))

@@ -105,3 +105,59 @@ def test_a_beam_far_from_its_waist_spreads_at_the_far_field_divergence():
     # before a waist ahead, the rays converge (point towards the axis)
     pts, dirs, _ = _beam_rays(F, [0, 0, 0], [0, 0, 1], w0, waist_distance=+distance)
     assert np.all(np.einsum("ij,ij->i", pts[1:, :2], dirs[1:, :2]) < 0)
+
+
+def test_groups_of_different_media_in_one_bundle_trace_as_each_group_alone():
+    # Ginzburg (1970), the ray in a linear layer X = x/L: turning point x = L cos²θ. Two
+    # layers of different gradient (L = 0.1 m and 0.05 m, a density scale per group) and a
+    # collisional one traced as one grouped bundle: each ray equals the ray of its own
+    # medium traced alone (its own steps) and turns where the closed form says.
+    lengths = np.array([0.1, 0.05, 0.1])
+    nus = [0.0, 0.0, 2e7]
+    theta = math.radians(30.0)
+    d = [math.cos(theta), 0.0, math.sin(theta)]
+    inside = lambda p: p[:, 0] + 1e-9  # noqa: E731
+
+    def dens_group(p, g):
+        return NC * np.clip(p[:, 0] / lengths[g], 0.0, None)
+
+    def field_group(p, g):
+        return np.zeros((len(p), 3))
+
+    together = trace_rays(F, np.zeros((3, 3)), [d] * 3, "O", field_group, dens_group,
+                          max_length=1.0, max_step=0.001, inside=inside,
+                          collision_frequency=nus, groups=np.array([0, 1, 2]))
+    for i, ray in enumerate(together):
+        alone = trace_rays(F, np.zeros((1, 3)), [d], "O", no_field,
+                           lambda p, i=i: NC * np.clip(p[:, 0] / lengths[i], 0.0, None),
+                           max_length=1.0, max_step=0.001, inside=inside,
+                           collision_frequency=nus[i])[0]
+        assert ray.stop == alone.stop == "wall"
+        np.testing.assert_allclose(ray.path, alone.path, rtol=1e-12, atol=1e-15)
+        np.testing.assert_allclose(ray.power, alone.power, rtol=1e-12)
+        assert ray.path[:, 0].max() == pytest.approx(lengths[i] * math.cos(theta) ** 2,
+                                                     rel=1e-4)
+    assert together[0].power[-1] == 1.0 and together[2].power[-1] < 1.0
+    with pytest.raises(ValueError, match="groups"):
+        trace_rays(F, np.zeros((2, 3)), [d] * 2, "O", field_group, dens_group, max_length=1.0,
+                   groups=np.array([0.0, 1.0]))
+
+
+def test_a_combined_grid_interpolates_the_combined_field():
+    # two dipoles (Jackson eq. 5.56) sampled as 6 components; the grid of 2 A + B built on
+    # the spline coefficients equals 2 A + B of the interpolated components (the B-spline
+    # prefilter is linear) and stays within the grid's accuracy of the closed form
+    a, b = _dipole(100.0, [0.0, 0.0, -0.3]), _dipole(-40.0, [0.0, 0.0, 0.5])
+    grid = GridField(lambda p: np.hstack([a(p), b(p)]), [-0.05, -0.05, 0.0],
+                     [0.05, 0.05, 0.2], 0.005)
+    both = grid.combined(np.hstack([2.0 * np.eye(3), np.eye(3)]))
+    pts = np.random.default_rng(5).uniform([-0.05, -0.05, 0.0], [0.05, 0.05, 0.2], (300, 3))
+    v = grid(pts)
+    np.testing.assert_allclose(both(pts), 2.0 * v[:, :3] + v[:, 3:], rtol=1e-12, atol=1e-18)
+    exact = 2.0 * a(pts) + b(pts)
+    # the two fields partly cancel: the error is measured against the sum of their sizes
+    size = 2.0 * np.linalg.norm(a(pts), axis=1) + np.linalg.norm(b(pts), axis=1)
+    err = np.linalg.norm(both(pts) - exact, axis=1) / size
+    assert err.max() < 1e-4 and both.components == 3
+    with pytest.raises(ValueError, match="weights"):
+        grid.combined(np.eye(3))
