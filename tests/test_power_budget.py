@@ -141,3 +141,61 @@ def test_table_text_in_one_unit_and_in_the_report():
     html = render_html(result, medium="screen")
     assert "Power budget" in html and html.count('<table class="budget">') == sum(
         1 for b in rows if not b["missing"])
+
+
+def _segments(svg: str) -> list[tuple[str, int, int, float]]:
+    """(kind, bar, row, width) of every drawn budget segment, from the SVG: each bar patch is
+    a group with its id holding a path of four corners (x0 y0 L x1 ...)."""
+    import re
+
+    out = []
+    for m in re.finditer(r'<g id="budget-el-(\w+)-(\d+)-(\d+)">\s*<path d="M ([\d.]+) [\d.]+ \s*L '
+                         r'([\d.]+) ', svg):
+        out.append((m.group(1), int(m.group(2)), int(m.group(3)),
+                    float(m.group(5)) - float(m.group(4))))
+    return out
+
+
+@pytest.mark.parametrize("name", sorted(CASES))
+def test_budget_figure_draws_every_share_and_its_caption_names_only_what_is_drawn(name):
+    from rfcheck.report.figure_budget import KINDS, budget_figure
+
+    result = _run(name)
+    fig = budget_figure(result)
+    bars = [b for b in power_budgets(result) if b.rows]
+    assert (fig is None) == (not bars)
+    if fig is None:
+        return
+    segs = _segments(fig["svg"])
+    # one segment per end row with a positive share, in every bar
+    for i, b in enumerate(bars):
+        ends = [r for r in b.rows if r.kind in KINDS and r.fraction > 0]
+        mine = [s for s in segs if s[1] == i]
+        assert len(mine) == len(ends), (b.feed, b.state)
+        # widths in the SVG are proportional to the shares: the bar is the whole forward
+        # power (energy conservation, as above), each segment its row's share of it
+        total = sum(s[3] for s in mine)
+        for s, r in zip(mine, ends):
+            assert s[0] == r.kind
+            assert s[3] / total == pytest.approx(r.fraction / sum(e.fraction for e in ends),
+                                                 rel=1e-3, abs=1e-4)
+    drawn = {s[0] for s in segs}
+    for kind, (label, _, _) in KINDS.items():
+        assert (label in fig["caption"]) == (kind in drawn), kind
+    assert ("running" in fig["caption"]) == any(b.state == RUNNING for b in bars)
+    assert ("ignition" in fig["caption"]) == any(b.state == IGNITION for b in bars)
+
+
+def test_budget_figure_of_a_fully_reflecting_cold_cavity_is_one_reflected_bar():
+    # the starter example leaves the cold cavity undeclared: the worst case |Γ_cold| = 1
+    # reflects the whole forward power at ignition (Pozar, §2.3: |Γ|² of the incident)
+    from rfcheck.report.figure_budget import budget_figure
+
+    result = _run("starter")
+    bars = [b for b in power_budgets(result) if b.rows]
+    fig = budget_figure(result)
+    ign = [i for i, b in enumerate(bars) if b.state == IGNITION]
+    assert ign
+    for i in ign:
+        mine = [s for s in _segments(fig["svg"]) if s[1] == i]
+        assert [s[0] for s in mine] == ["reflected"]

@@ -143,4 +143,9 @@ def all_figures(run) -> list[dict]:
     from .figure_rays import ray_figures
 
     out.extend(ray_figures(run))  # off-axis, oblique and beam launches only
+    from .figure_budget import budget_figure
+
+    fig = budget_figure(run)  # drawn in the budget section, beside its table
+    if fig:
+        out.append(fig)
     return out
