@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from rfcheck.report.figures import _mpl, _svg
+from rfcheck.report.figures import Drawn, _mpl, _svg
 
 #: grid of the map (axial x radial samples)
 GRID_Z = 64
@@ -77,20 +77,26 @@ def fringe_figure(run) -> dict | None:
     bar = fig.colorbar(mesh, ax=ax, pad=0.02)
     bar.set_label("log10 |B| / mT")
     handles = []
+    drawn = Drawn()
+    missing = []
     for i, (name, level, _) in enumerate(lines):
         c = _LINE_COLOURS[i % len(_LINE_COLOURS)]
         if np.nanmin(b) < level < np.nanmax(b):
-            ax.contour(z, r, b, levels=[level], colors=[c], linewidths=1.6)
-        handles.append(plt.Line2D([], [], color=c, lw=1.6,
-                                  label=f"{name}: |B| = {level * 1e3:.3g} mT"))
+            drawn.tag(ax.contour(z, r, b, levels=[level], colors=[c], linewidths=1.6), "line")
+            handles.append(plt.Line2D([], [], color=c, lw=1.6,
+                                      label=f"{name}: |B| = {level * 1e3:.3g} mT"))
+        else:
+            missing.append(name)
     for z1, z2, r1, r2 in boxes:
-        ax.add_patch(plt.Rectangle((z1, r1), z2 - z1, r2 - r1, color="0.55", lw=0))
+        drawn.tag(ax.add_patch(plt.Rectangle((z1, r1), z2 - z1, r2 - r1, color="0.55", lw=0)),
+                  "magnet")
     ch = model.chamber
-    ax.add_patch(plt.Rectangle((ch.z_start, 0.0), ch.length, ch.radius, fill=False,
-                               ec="black", lw=0.8))
+    drawn.tag(ax.add_patch(plt.Rectangle((ch.z_start, 0.0), ch.length, ch.radius, fill=False,
+                                         ec="black", lw=0.8)), "chamber")
     if area is not None:
-        ax.add_patch(plt.Rectangle((area.z_start, 0.0), area.z_end - area.z_start, area.radius,
-                                   fill=False, ec="black", lw=1.2, ls="--"))
+        drawn.tag(ax.add_patch(plt.Rectangle((area.z_start, 0.0), area.z_end - area.z_start,
+                                             area.radius, fill=False, ec="black", lw=1.2,
+                                             ls="--")), "area")
         handles.append(plt.Line2D([], [], color="black", lw=1.2, ls="--",
                                   label="controlled-area boundary"))
     ax.set_xlabel("z (m)")
@@ -102,9 +108,12 @@ def fringe_figure(run) -> dict | None:
     summary = "; ".join(f"{name} at z = {d['z_low']:.3g} m and {d['z_high']:.3g} m on the axis, "
                         f"r = {d['radius']:.3g} m radially" for name, _, d in lines)
     caption = ("|B| around the source in the r-z half plane (azimuth 0), the largest over the "
-               "current tolerance, from the run's field model without iron; grey: windings and "
-               f"magnets; solid box: chamber. {summary}."
+               "current tolerance, from the run's field model without iron; "
+               + ("grey: windings and magnets; " if "magnet" in drawn else "")
+               + f"solid box: chamber. {summary}."
+               + (" Coloured lines: where |B| falls to each level." if "line" in drawn else "")
+               + (f" Not within the map: {', '.join(missing)}." if missing else "")
                + (" Dashed: the declared controlled area." if area is not None else
                   " No controlled area is declared."))
     return {"id": "fringe-field", "title": "Static fringe field and its lines",
-            "svg": _svg(fig, "fringe"), "caption": caption}
+            "svg": _svg(fig, "fringe"), "caption": caption, "drawn": sorted(drawn.count)}

@@ -11,13 +11,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from rfcheck.report.figures import _mpl, _svg
-from rfcheck.text import shorten
-
-
-def _short(ident: str) -> str:
-    """An id as a figure label: long ids are cut so they never squeeze the plot."""
-    return shorten(ident, 16)
+from rfcheck.report.figures import Drawn, _mpl, _short, _svg, sentence
 
 
 #: grid of the map (radial × axial samples per half plane)
@@ -68,6 +62,7 @@ def field_map_figure(run) -> dict | None:
     zm = upper.z * 1e3
     plt = _mpl()
     fig, ax = plt.subplots(figsize=(6.6, 3.2))
+    drawn = Drawn()
     mesh = ax.contourf(zm, r, b, levels=MAP_LEVELS, cmap="viridis")
     bar = fig.colorbar(mesh, ax=ax, pad=0.02)
     bar.set_label("|B| (T)")
@@ -80,7 +75,7 @@ def field_map_figure(run) -> dict | None:
         if not b.min() < b_res < b.max():
             continue
         c = _COLOURS[i % len(_COLOURS)]
-        ax.contour(zm, r, b, levels=[b_res], colors=[c], linewidths=1.6)
+        drawn.tag(ax.contour(zm, r, b, levels=[b_res], colors=[c], linewidths=1.6), "resonance")
         handles.append(plt.Line2D([], [], color=c, lw=1.6,
                                   label=f"|B| = {b_res:.4g} T, feed {_short(feed.id)} "
                                         f"({feed.frequency / 1e9:.4g} GHz, h={h})"))
@@ -88,17 +83,20 @@ def field_map_figure(run) -> dict | None:
     r_top = r[-1]
     outside = []
     for lm in model.chamber.landmarks:
-        ax.axvline(lm.z * 1e3, color="white", lw=0.9, ls=":")
+        if not zm[0] <= lm.z * 1e3 <= zm[-1]:
+            outside.append(f"landmark {_short(lm.id)} at z = {lm.z * 1e3:.0f} mm")
+            continue
+        drawn.tag(ax.axvline(lm.z * 1e3, color="white", lw=0.9, ls=":"), "landmark")
         ax.text(lm.z * 1e3, r_top * 0.95, f" {_short(lm.id)}", color="white", fontsize=7, va="top",
                 rotation=90)
-    markers = ([(f"window {_short(w.id)}", w.z, "s") for w in model.windows]
-               + [(f"launcher {_short(f.id)}", f.launch.z, ">" if f.launch.direction > 0 else "<")
-                  for f in model.feeds])
+    markers = ([("window", f"window {_short(w.id)}", w.z, "s") for w in model.windows]
+               + [("launcher", f"launcher {_short(f.id)}", f.launch.z,
+                   ">" if f.launch.direction > 0 else "<") for f in model.feeds])
     labels: dict[float, list[str]] = {}
-    for name, z, marker in markers:
+    for kind, name, z, marker in markers:
         if zm[0] <= z * 1e3 <= zm[-1]:
-            ax.plot([z * 1e3], [0.0], marker=marker, color="#f0e442", ms=7, mec="black",
-                    ls="none")
+            drawn.tag(ax.plot([z * 1e3], [0.0], marker=marker, color="#f0e442", ms=7,
+                              mec="black", ls="none")[0], kind)
             labels.setdefault(round(z * 1e3, 3), []).append(name)
         else:
             outside.append(f"{name} at z = {z * 1e3:.0f} mm")
@@ -112,10 +110,18 @@ def field_map_figure(run) -> dict | None:
     ax.grid(False)
     if handles:
         ax.legend(handles=handles, loc="lower right", fontsize=7, framealpha=0.85)
+    marks = drawn.phrases([("resonance", "lines: resonance surfaces of the ECR feeds "
+                                          "whose resonance field lies within the map"),
+                           ("landmark", "dotted: landmarks")])
+    on_axis = drawn.phrases([("window", "windows (squares)"),
+                             ("launcher", "launchers (triangles, pointing along the launch)")])
+    if on_axis:
+        marks.append("markers on the axis: " + " and ".join(on_axis))
     caption = ("|B| over the chamber (r, z) at nominal current, from the run's field model; "
-               f"{note}. Lines: resonance surfaces of each ECR feed; dotted: landmarks; "
-               "markers on the axis: windows and launchers.")
+               f"{note}." + (" " + sentence("; ".join(marks)) + "." if marks else "")
+               + ("" if "resonance" in drawn else
+                  " No feed's resonance field lies within the map."))
     if outside:
         caption += " Outside the chamber: " + "; ".join(outside) + "."
     return {"id": "field-map", "title": "Field map and resonance surfaces",
-            "svg": _svg(fig, "field-map"), "caption": caption}
+            "svg": _svg(fig, "field-map"), "caption": caption, "drawn": sorted(drawn.count)}

@@ -9,7 +9,7 @@ import math
 
 import numpy as np
 
-from rfcheck.report.figures import _mpl, _short, _svg
+from rfcheck.report.figures import Drawn, _mpl, _short, _svg
 
 #: samples of the map (signed radius × z)
 MAP_R, MAP_Z = 61, 121
@@ -55,23 +55,26 @@ def _map_figure(run, study) -> dict:
     y = bmag / float(ecr_field(f))
     plt = _mpl()
     fig, ax = plt.subplots(figsize=(6.6, 3.4))
+    drawn = Drawn()
     cs = ax.contourf(z * 1e3, r * 1e3, bmag * 1e3, levels=20, cmap="Greys", alpha=0.55)
     fig.colorbar(cs, ax=ax, label="|B| (mT)", shrink=0.85)
-    ax.contour(z * 1e3, r * 1e3, bmag, levels=[study.b_res], colors="#c44e52", linewidths=1.4)
+    if np.nanmin(bmag) < study.b_res < np.nanmax(bmag):
+        drawn.tag(ax.contour(z * 1e3, r * 1e3, bmag, levels=[study.b_res], colors="#c44e52",
+                             linewidths=1.4), "layer")
     cut = {"R": (x - (1 - y), "R cutoff X = 1 − Y"), "X": (x - (1 - y), "R cutoff X = 1 − Y"),
            "O": (x - 1.0, "O cutoff X = 1"), "L": (x - (1 + y), "L cutoff X = 1 + Y")}
     g, cut_name = cut[study.mode]
     if np.nanmin(g) < 0 < np.nanmax(g):
-        ax.contour(z * 1e3, r * 1e3, g, levels=[0.0], colors="#dd8452", linewidths=1.2,
-                   linestyles="--")
+        drawn.tag(ax.contour(z * 1e3, r * 1e3, g, levels=[0.0], colors="#dd8452",
+                             linewidths=1.2, linestyles="--"), "cutoff")
     for ray in corner.rays:
-        ax.plot(ray.path[:, 2] * 1e3, _in_plane(ray.path, phi) * 1e3, color="#1f3f73",
-                lw=0.6, alpha=0.8)
+        drawn.tag(ax.plot(ray.path[:, 2] * 1e3, _in_plane(ray.path, phi) * 1e3,
+                          color="#1f3f73", lw=0.6, alpha=0.8)[0], "ray")
     ends = [ray.end for ray, e in zip(corner.rays, corner.ends) if e == "layer"]
     if ends:
         e = np.array(ends)
-        ax.plot(e[:, 2] * 1e3, _in_plane(e, phi) * 1e3, "o", ms=2.5, color="#c44e52",
-                zorder=5)
+        drawn.tag(ax.plot(e[:, 2] * 1e3, _in_plane(e, phi) * 1e3, "o", ms=2.5,
+                          color="#c44e52", zorder=5)[0], "layer-point")
     ax.set_xlabel("z (mm)")
     ax.set_ylabel(f"transverse position at {math.degrees(phi):.3g}° (mm)")
     ax.set_xlim(ch.z_start * 1e3, ch.z_end * 1e3)
@@ -79,16 +82,23 @@ def _map_figure(run, study) -> dict:
     ax.grid(False)
     return {"id": f"rays-map-{feed.id}", "title": f"Rays of feed {_short(feed.id)} over |B|",
             "svg": _svg(fig, f"rays-map-{feed.id}"),
+            "drawn": sorted(drawn.count),
             "caption": (f"Feed {feed.id}: the {len(corner.rays)} rays of the {study.mode} "
                         f"branch at the densest corner ({_corner_text(corner)}), projected "
                         f"onto the plane through the axis at azimuth {math.degrees(phi):.3g}° "
                         f"(transverse position against z), over |B| in that plane (grey, "
-                        f"from the ray study's spline grid); solid red: the layer |B| = "
-                        f"{study.b_res * 1e3:.4g} mT in that plane; red dots: where the rays "
-                        f"met the layer (projected); dashed orange: the {cut_name} of that "
-                        "corner in that plane (absent where the plane has none). A ray that "
-                        "leaves the plane is drawn by its projection, so it may appear to "
-                        "cross the resonance curve of the plane without meeting it.")}
+                        f"from the ray study's spline grid); "
+                        + (f"solid red: the layer |B| = {study.b_res * 1e3:.4g} mT in that "
+                           "plane; " if "layer" in drawn else
+                           f"the layer |B| = {study.b_res * 1e3:.4g} mT does not cross that "
+                           "plane; ")
+                        + ("red dots: where the rays met the layer (projected); "
+                           if "layer-point" in drawn else "no ray met the layer; ")
+                        + (f"dashed orange: the {cut_name} of that corner in that plane. "
+                           if "cutoff" in drawn else
+                           f"the {cut_name} does not cross that plane at that corner. ")
+                        + "A ray that leaves the plane is drawn by its projection, so it may "
+                        "appear to cross the resonance curve of the plane without meeting it.")}
 
 
 def _section_figure(run, study) -> dict | None:
@@ -110,18 +120,21 @@ def _section_figure(run, study) -> dict | None:
     bmag = np.where(np.hypot(xx, yy) <= ch.radius, bmag, np.nan)
     plt = _mpl()
     fig, ax = plt.subplots(figsize=(4.6, 3.8))
+    drawn = Drawn()
     cs = ax.contourf(u * 1e3, u * 1e3, bmag.T * 1e3, levels=20, cmap="Greys", alpha=0.55)
     fig.colorbar(cs, ax=ax, label="|B| (mT)", shrink=0.85)
     if np.nanmin(bmag) < study.b_res < np.nanmax(bmag):
-        ax.contour(u * 1e3, u * 1e3, bmag.T, levels=[study.b_res], colors="#c44e52",
-                   linewidths=1.4)
+        drawn.tag(ax.contour(u * 1e3, u * 1e3, bmag.T, levels=[study.b_res], colors="#c44e52",
+                             linewidths=1.4), "layer")
     for i, c in enumerate(study.corners):
         e = np.array([r.end for r, end in zip(c.rays, c.ends) if end == "layer"]).reshape(-1, 3)
         if e.size:
-            ax.plot(e[:, 0] * 1e3, e[:, 1] * 1e3, "o", ms=2.2,
-                    color=_CORNER_COLOURS[i % len(_CORNER_COLOURS)], label=_corner_text(c))
+            drawn.tag(ax.plot(e[:, 0] * 1e3, e[:, 1] * 1e3, "o", ms=2.2,
+                              color=_CORNER_COLOURS[i % len(_CORNER_COLOURS)],
+                              label=_corner_text(c))[0], "layer-point")
     t = np.linspace(0, 2 * math.pi, 181)
-    ax.plot(ch.radius * 1e3 * np.cos(t), ch.radius * 1e3 * np.sin(t), color="0.3", lw=1.0)
+    drawn.tag(ax.plot(ch.radius * 1e3 * np.cos(t), ch.radius * 1e3 * np.sin(t), color="0.3",
+                      lw=1.0)[0], "wall")
     ax.set_aspect("equal")
     ax.set_xlabel("x (mm)")
     ax.set_ylabel("y (mm)")
@@ -133,10 +146,14 @@ def _section_figure(run, study) -> dict | None:
             "caption": (f"Feed {feed.id}: |B| across the chamber (grey, from the ray study's "
                         f"spline grid) in the plane z = {z0 * 1e3:.4g} mm, where the rays of "
                         f"the densest corner ({_corner_text(corner)}) meet the layer (their "
-                        "power-weighted mean z); solid red: the layer |B| = "
-                        f"{study.b_res * 1e3:.4g} mT in that plane; dots: the (x, y) of every "
-                        "ray's end on the layer, one colour per envelope corner, each at its "
-                        "own z; grey circle: the chamber wall.")}
+                        "power-weighted mean z); "
+                        + (f"solid red: the layer |B| = {study.b_res * 1e3:.4g} mT in that "
+                           "plane; " if "layer" in drawn else
+                           f"|B| = {study.b_res * 1e3:.4g} mT is not reached in that plane "
+                           "(the layer points lie at other z); ")
+                        + "dots: the (x, y) of every ray's end on the layer, one colour per "
+                        "envelope corner, each at its own z; grey circle: the chamber wall."),
+            "drawn": sorted(drawn.count)}
 
 
 def _profile_figure(run, study) -> dict:
@@ -146,16 +163,18 @@ def _profile_figure(run, study) -> dict:
     width = edges[1] - edges[0]
     plt = _mpl()
     fig, ax = plt.subplots(figsize=(6.6, 2.6))
+    drawn = Drawn()
     for i, c in enumerate(study.corners):
         d = c.deposits
         hist = (np.histogram(d[:, 2], bins=edges, weights=d[:, 3])[0] if d.size
                 else np.zeros(PROFILE_BINS))
-        ax.step(edges[:-1] * 1e3, hist / (width * 1e3), where="post", lw=1.1,
-                color=_CORNER_COLOURS[i % len(_CORNER_COLOURS)], label=_corner_text(c))
+        drawn.tag(ax.step(edges[:-1] * 1e3, hist / (width * 1e3), where="post", lw=1.1,
+                          color=_CORNER_COLOURS[i % len(_CORNER_COLOURS)],
+                          label=_corner_text(c))[0], "corner")
     target = feed.launch.target
     if target is not None:
-        ax.axvspan(target.z_start * 1e3, target.z_end * 1e3, color="#55a868", alpha=0.15,
-                   lw=0, label=f"target ({target.label})")
+        drawn.tag(ax.axvspan(target.z_start * 1e3, target.z_end * 1e3, color="#55a868",
+                             alpha=0.15, lw=0, label=f"target ({target.label})"), "target")
     ax.set_xlabel("z (mm)")
     ax.set_ylabel("deposited power (fraction / mm)")
     ax.set_xlim(ch.z_start * 1e3, ch.z_end * 1e3)
@@ -168,7 +187,8 @@ def _profile_figure(run, study) -> dict:
                         f"{width * 1e3:.3g} mm; at the layer and by collisions along the "
                         "rays), one line per envelope corner"
                         + ("; shaded: the launch's intended region (z only)." if target
-                           else "."))}
+                           else ".")),
+            "drawn": sorted(drawn.count)}
 
 
 def ray_figures(run) -> list[dict]:

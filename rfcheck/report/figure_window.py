@@ -10,13 +10,7 @@ import math
 
 import numpy as np
 
-from rfcheck.report.figures import _mpl, _svg
-from rfcheck.text import shorten
-
-
-def _short(ident: str) -> str:
-    """An id as a figure label: long ids are cut so they never squeeze the plot."""
-    return shorten(ident, 16)
+from rfcheck.report.figures import Drawn, _mpl, _short, _svg
 
 
 #: Half-width of the plotted frequency range as a fraction of the feed frequency (at least
@@ -54,6 +48,7 @@ def window_figure(run) -> dict | None:
     limit = _limit(run)
     plt = _mpl()
     fig, axes = plt.subplots(len(analyses), 1, figsize=(6.6, 2.5 * len(analyses)), squeeze=False)
+    drawn = Drawn()
     for ax, a in zip(axes[:, 0], analyses):
         feed = a.feed
         half = max(PLOT_SPAN * feed.frequency, 3.0 * feed.frequency_tolerance)
@@ -63,20 +58,25 @@ def window_figure(run) -> dict | None:
         fg = f / 1e9
         with np.errstate(invalid="ignore"):
             if g.shape[0] > 1 and np.isfinite(g).any():
-                ax.fill_between(fg, np.nanmin(g, axis=0), np.nanmax(g, axis=0), color="#4c72b0",
-                                alpha=0.25, lw=0, label="worst combinations found")
-        ax.plot(fg, g[a.nominal], color="#1f3f73", lw=1.5, label="nominal stack")
+                drawn.tag(ax.fill_between(fg, np.nanmin(g, axis=0), np.nanmax(g, axis=0),
+                                          color="#4c72b0", alpha=0.25, lw=0,
+                                          label="worst combinations found"), "worst-band")
+        if np.isfinite(g[a.nominal]).any():
+            drawn.tag(ax.plot(fg, g[a.nominal], color="#1f3f73", lw=1.5,
+                              label="nominal stack")[0], "nominal")
         lo, hi = feed.frequency - feed.frequency_tolerance, feed.frequency + feed.frequency_tolerance
         if hi > lo:
-            ax.axvspan(lo / 1e9, hi / 1e9, color="#dd8452", alpha=0.25, lw=0,
-                       label=f"feed {_short(feed.id)}: f ± tolerance")
+            drawn.tag(ax.axvspan(lo / 1e9, hi / 1e9, color="#dd8452", alpha=0.25, lw=0,
+                                 label=f"feed {_short(feed.id)}: f ± tolerance"), "tolerance")
         else:
-            ax.axvline(feed.frequency / 1e9, color="#dd8452", lw=1.2, label=f"feed {_short(feed.id)}")
+            drawn.tag(ax.axvline(feed.frequency / 1e9, color="#dd8452", lw=1.2,
+                                 label=f"feed {_short(feed.id)}"), "frequency")
         if limit is not None:
-            ax.axhline(limit, color="#c44e52", lw=1.0, ls="--", label=f"limit |Γ| = {limit:.3g}")
+            drawn.tag(ax.axhline(limit, color="#c44e52", lw=1.0, ls="--",
+                                 label=f"limit |Γ| = {limit:.3g}"), "limit")
         worst, wf, _ = a.worst_gamma
         if math.isfinite(worst):
-            ax.plot([wf / 1e9], [worst], "o", ms=4, color="#c44e52")
+            drawn.tag(ax.plot([wf / 1e9], [worst], "o", ms=4, color="#c44e52")[0], "worst")
         stack = " + ".join(f"{la.thickness * 1e3:.4g} mm {la.material}" for la in a.window.layers)
         ax.set_title(f"window {_short(a.window.id)}: {stack} in {a.line.name}", fontsize=8.5)
         ax.set_xlabel("frequency (GHz)")
@@ -85,12 +85,19 @@ def window_figure(run) -> dict | None:
         ax.set_ylim(0.0, 1.0)
         ax.legend(loc="upper right", fontsize=7, framealpha=0.85)
     fig.tight_layout()
+    parts = drawn.phrases([
+        ("nominal", "nominal stack (line)"),
+        ("worst-band", "the envelope of the worst combinations of thickness, permittivity "
+                       "and loss tangent within their spreads that the window rules found "
+                       "(band)")])
+    marks = drawn.phrases([
+        ("tolerance", "shaded: the feed's f ± tolerance"),
+        ("frequency", "vertical line: the feed's frequency (no tolerance declared)"),
+        ("limit", "dashed: the |Γ| limit of the policy"),
+        ("worst", "dot: the worst point judged by window.reflection")])
+    caption = ("Magnitude of the reflection coefficient of each window in its feed's line "
+               "(TE10/TE11 guide mode, or a plane wave at normal incidence)"
+               + (": " + " and ".join(parts) if parts else "")
+               + ("; " + "; ".join(marks) if marks else "") + ".")
     return {"id": "window-reflection", "title": "Window reflection against frequency",
-            "svg": _svg(fig, "window"),
-            "caption": "Magnitude of the reflection coefficient of each window in its feed's line "
-                       "(TE10/TE11 guide mode, or a plane wave at normal incidence): nominal "
-                       "stack (line) and the envelope of the worst combinations of thickness, "
-                       "permittivity and loss tangent within their spreads that the window "
-                       "rules found (band); "
-                       "shaded: the feed's f ± tolerance; dashed: the |Γ| limit of the policy; "
-                       "dot: the worst point judged by window.reflection."}
+            "svg": _svg(fig, "window"), "caption": caption, "drawn": sorted(drawn.count)}

@@ -28,6 +28,34 @@ def _mpl():
     return plt
 
 
+class Drawn:
+    """What a figure draws, by element name: each element a caption promises is tagged with
+    an SVG id ``el-<name>-<n>`` (the figure's prefix is added by :func:`_svg`), and the
+    caption is assembled from the names actually drawn, so that it never promises an element
+    the figure lacks (tests read the ids back from the SVG)."""
+
+    def __init__(self) -> None:
+        self.count: dict[str, int] = {}
+
+    def tag(self, artist, name: str):
+        n = self.count.get(name, 0)
+        self.count[name] = n + 1
+        artist.set_gid(f"el-{name}-{n}")
+        return artist
+
+    def __contains__(self, name: str) -> bool:
+        return name in self.count
+
+    def phrases(self, parts: list[tuple[str, str]]) -> list[str]:
+        """The phrases of `parts` ((element name, phrase) pairs) whose element is drawn."""
+        return [text for name, text in parts if name in self]
+
+
+def sentence(text: str) -> str:
+    """`text` with its first letter in upper case (the rest as it is: ids, units, ECR)."""
+    return text[:1].upper() + text[1:]
+
+
 def _svg(fig, salt: str) -> str:
     import matplotlib
 
@@ -78,12 +106,16 @@ def axis_field_figure(run) -> dict | None:
 
     plt = _mpl()
     fig, ax = plt.subplots(figsize=(6.6, 3.0))
+    drawn = Drawn()
     zm = z * 1e3
     mid = b.shape[0] // 2
     if b.shape[0] > 1:
-        ax.fill_between(zm, b.min(axis=0) * 1e3, b.max(axis=0) * 1e3, color="#4c72b0", alpha=0.25,
-                        lw=0, label=f"current ±{model.magnet.current_tolerance:.1%}")
-    ax.plot(zm, b[mid] * 1e3, color="#1f3f73", lw=1.6, label="|B| on axis, nominal")
+        drawn.tag(ax.fill_between(zm, b.min(axis=0) * 1e3, b.max(axis=0) * 1e3, color="#4c72b0",
+                                  alpha=0.25, lw=0,
+                                  label=f"current ±{model.magnet.current_tolerance:.1%}"),
+                  "current-band")
+    drawn.tag(ax.plot(zm, b[mid] * 1e3, color="#1f3f73", lw=1.6, label="|B| on axis, nominal")[0],
+              "nominal")
     colours = ["#c44e52", "#dd8452", "#8172b3", "#55a868"]
     for i, feed in enumerate(model.feeds):
         h = ECR_HARMONIC.get(feed.absorption)
@@ -92,33 +124,47 @@ def axis_field_figure(run) -> dict | None:
         lo = float(ecr_field(feed.frequency - feed.frequency_tolerance, harmonic=h)) * 1e3
         hi = float(ecr_field(feed.frequency + feed.frequency_tolerance, harmonic=h)) * 1e3
         c = colours[i % len(colours)]
-        ax.axhspan(lo, hi, color=c, alpha=0.25, lw=0)
-        ax.axhline(float(ecr_field(feed.frequency, harmonic=h)) * 1e3, color=c, lw=1, ls="--",
-                   label=f"resonance, feed {_short(feed.id)} ({feed.frequency / 1e9:.4g} GHz, h={h})")
+        if hi > lo:
+            drawn.tag(ax.axhspan(lo, hi, color=c, alpha=0.25, lw=0), "resonance-band")
+        drawn.tag(ax.axhline(float(ecr_field(feed.frequency, harmonic=h)) * 1e3, color=c, lw=1,
+                             ls="--", label=f"resonance, feed {_short(feed.id)} "
+                                            f"({feed.frequency / 1e9:.4g} GHz, h={h})"),
+                  "resonance")
     ymax = ax.get_ylim()[1]
-    marks: dict[float, list[str]] = {}
+    marks: dict[float, list[tuple[str, str]]] = {}
     outside: list[str] = []
-    for name, zz in ([(_short(lm.id), lm.z) for lm in model.chamber.landmarks]
-                     + [(f"window {_short(w.id)}", w.z) for w in model.windows]
-                     + [(f"launch {_short(f.id)}", f.launch.z) for f in model.feeds]):
-        marks.setdefault(round(zz, 6), []).append(name)
+    for kind, name, zz in ([("landmark", _short(lm.id), lm.z) for lm in model.chamber.landmarks]
+                           + [("window", f"window {_short(w.id)}", w.z) for w in model.windows]
+                           + [("launcher", f"launch {_short(f.id)}", f.launch.z)
+                              for f in model.feeds]):
+        marks.setdefault(round(zz, 6), []).append((kind, name))
     z_lo, z_hi = float(z[0]), float(z[-1])
-    for zz, names in sorted(marks.items()):
+    for zz, items in sorted(marks.items()):
+        names = [name for _, name in items]
         if not z_lo <= zz <= z_hi:  # outside the chamber: named in the caption instead
             outside.append(f"{' / '.join(names)} at z = {zz * 1e3:g} mm")
             continue
-        ax.axvline(zz * 1e3, color="0.35", lw=0.8, ls=":")
+        for kind in dict.fromkeys(k for k, _ in items):  # one line per kind (they coincide)
+            drawn.tag(ax.axvline(zz * 1e3, color="0.35", lw=0.8, ls=":"), kind)
         ax.text(zz * 1e3, ymax * 0.98, " " + " / ".join(names), rotation=90, va="top", ha="left",
                 fontsize=7, color="0.25")
     ax.set_xlabel("z (mm)")
     ax.set_ylabel("|B| (mT)")
     ax.set_xlim(zm[0], zm[-1])
     ax.legend(loc="best", fontsize=7, framealpha=0.85)
-    return {"id": "axis-field", "title": "On-axis field and resonance bands", "svg": _svg(fig, "axis"),
-            "caption": "Magnitude of B on the chamber axis at nominal current (line) and over the "
-                       "current tolerance (band); horizontal bands: resonance fields over each "
-                       "feed's frequency tolerance; dotted: landmarks, windows, launchers."
-                       + (f" Outside the chamber: {'; '.join(outside)}." if outside else "")}
+    caption = ("Magnitude of B on the chamber axis at nominal current (line)"
+               + (" and over the current tolerance (band)" if "current-band" in drawn else ""))
+    if "resonance" in drawn:
+        caption += ("; dashed: each ECR feed's resonance field at its nominal frequency"
+                    + (", shaded: over its frequency tolerance" if "resonance-band" in drawn
+                       else ""))
+    dotted = drawn.phrases([("landmark", "landmarks"), ("window", "windows"),
+                            ("launcher", "launchers")])
+    if dotted:
+        caption += "; dotted: " + ", ".join(dotted)
+    caption += "." + (f" Outside the chamber: {'; '.join(outside)}." if outside else "")
+    return {"id": "axis-field", "title": "On-axis field and resonance bands",
+            "svg": _svg(fig, "axis"), "caption": caption, "drawn": sorted(drawn.count)}
 
 
 def all_figures(run) -> list[dict]:
