@@ -64,10 +64,20 @@ def test_pdf_is_reproducible(demo_run, demo_pdf):
     assert render_pdf(demo_run) == demo_pdf
 
 
-def test_html_has_figures_as_inline_svg(demo_run):
-    html = render_html(demo_run)
-    assert html.count("<svg") >= 1
-    assert "On-axis field" in html
+def test_html_has_figures_as_inline_svg_on_screen_and_as_svg_images_for_the_pdf(demo_run):
+    import base64
+    import re
+
+    screen = render_html(demo_run, medium="screen")
+    assert screen.count("<svg") >= 1
+    assert "On-axis field" in screen
+    pdf_html = render_html(demo_run)
+    assert "<svg" not in pdf_html and "On-axis field" in pdf_html
+    images = re.findall(r'<img class="figure" alt="" src="data:image/svg\+xml;base64,([^"]+)">',
+                        pdf_html)
+    # the same figures, one image per inline SVG of the screen page
+    assert len(images) == screen.count("<svg")
+    assert all(base64.b64decode(i).decode("utf-8").startswith("<svg") for i in images)
 
 
 @pytest.mark.parametrize("name", ["bench-ecr-reactor.toml", "min-b-ion-source.toml", "starter.toml"])

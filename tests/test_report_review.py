@@ -275,7 +275,11 @@ def test_hostile_spec_text_renders_as_inert_text(tmp_path, monkeypatch, no_netwo
     assert "root:" not in text  # /etc/passwd's first field (POSIX passwd format)
     fetcher, = made
     assert fetcher.refused == [] and no_network == []  # nothing outside the package was asked for
-    assert fetcher.served and all(u.startswith("file://") and u.endswith(".ttf") for u in fetcher.served)
+    # the packaged fonts by file: URL, and the figures as data: URIs of SVG (render.svg_image)
+    assert fetcher.served and all((u.startswith("file://") and u.endswith(".ttf"))
+                                  or u.startswith("data:image/svg+xml;base64,")
+                                  for u in fetcher.served)
+    assert any(u.endswith(".ttf") for u in fetcher.served)
 
 
 def test_fetcher_refuses_files_outside_the_package_and_every_network_scheme(no_network):

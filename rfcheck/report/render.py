@@ -49,10 +49,27 @@ def render_html(run, medium: str = "pdf") -> str:
     env = jinja2.Environment(
         loader=jinja2.FileSystemLoader(str(templates_dir())), autoescape=_autoescape,
         undefined=jinja2.StrictUndefined, trim_blocks=True, lstrip_blocks=True)
-    data = report_context.build(run, all_figures(run))
+    figures = all_figures(run)
+    data = report_context.build(run, figures if medium == "screen" else
+                                [{**f, "svg": svg_image(f["svg"])} for f in figures])
+    if medium == "pdf" and data.get("glance") and data["glance"].get("figure"):
+        g = data["glance"]["figure"]
+        data["glance"] = {**data["glance"], "figure": {**g, "svg": svg_image(g["svg"])}}
     data["medium"] = medium
     data["font_dir"] = _font_dir().as_uri() if medium == "pdf" else ""
     return env.get_template("report.html.j2").render(**data)
+
+
+def svg_image(svg: str) -> str:
+    """A figure's SVG as an ``<img>`` of a ``data:`` URI, for the PDF renderer: weasyprint
+    draws it with the same SVG code as inline markup (same vectors, same text), but its
+    elements stay out of the HTML document's style cascade, which costs about a third of the
+    layout time of a report with inline figures (measured on the bench example: layout
+    2.5 → 1.8 s). The browser page keeps inline SVG."""
+    import base64
+
+    data = base64.b64encode(svg.encode("utf-8")).decode("ascii")
+    return f'<img class="figure" alt="" src="data:image/svg+xml;base64,{data}">'
 
 
 def render_screen_html(run) -> bytes:
