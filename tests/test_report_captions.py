@@ -110,3 +110,13 @@ def test_the_marks_drawn_follow_the_declared_spec(path):
     if window is not None:
         ran = any(u.id == "window.reflection" for u in result.rules)
         assert ("limit" in window["drawn"]) == ran
+
+
+@pytest.mark.parametrize("value, text", [
+    (0.0, "0"), (1.0, "1"), (10.0, "10"), (100.0, "10²"), (-1000.0, "−10³"), (1e-3, "10⁻³"),
+    (0.5, "0.5"), (-2.0, "−2"), (float("nan"), "")])
+def test_log_tick_labels_are_plain_text(value, text):
+    # powers of ten written with Unicode superscripts (U+00B2, U+00B3, U+207B…), no mathtext
+    from rfcheck.report.figures import power_label
+
+    assert power_label(value) == text

@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from rfcheck.report.figures import _mpl, _short, _svg
+from rfcheck.report.figures import _mpl, _short, _svg, plain_log_ticks
 from rfcheck.units import format_si
 
 #: branch colours and line styles (distinct in greyscale print too)
@@ -103,6 +103,8 @@ def dispersion_figure(run) -> dict | None:
             ax.set_xscale("log")
             ax.set_yscale("log")
             ax.set_ylim(f[0] / 1e9, f_top / 1e9)
+            ax.autoscale_view()
+            plain_log_ticks(ax)
         else:
             ax.set_xlim(0, k_max)
             ax.set_ylim(0, f_top / 1e9)

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from rfcheck.report.figures import Drawn, _mpl, _svg
+from rfcheck.report.figures import Drawn, _mpl, _svg, sentence
 
 #: grid of the map (axial x radial samples)
 GRID_Z = 64
@@ -110,7 +110,7 @@ def fringe_figure(run) -> dict | None:
     caption = ("|B| around the source in the r-z half plane (azimuth 0), the largest over the "
                "current tolerance, from the run's field model without iron; "
                + ("grey: windings and magnets; " if "magnet" in drawn else "")
-               + f"solid box: chamber. {summary}."
+               + f"solid box: chamber. {sentence(summary)}."
                + (" Coloured lines: where |B| falls to each level." if "line" in drawn else "")
                + (f" Not within the map: {', '.join(missing)}." if missing else "")
                + (" Dashed: the declared controlled area." if area is not None else

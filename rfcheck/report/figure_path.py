@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from rfcheck.report.figures import Drawn, _mpl, _short, _svg, sentence
+from rfcheck.report.figures import Drawn, _mpl, _short, _svg, plain_log_ticks, sentence
 
 
 _COLOURS = ["#1f3f73", "#55a868", "#8172b3", "#dd8452", "#937860"]
@@ -58,6 +58,7 @@ def launch_path_figure(run) -> dict | None:
             drawn.tag(ax.axvline(zz * 1e3, color="#4c72b0", lw=0.9, ls=":",
                                  label="first cutoff" if i == 0 else None), "cutoff")
         ax.set_yscale("symlog", linthresh=1.0)
+        plain_log_ticks(ax, "y")
         ax.set_xlim(min(z[0], z[-1]), max(z[0], z[-1]))
         ax.set_xlabel("z (mm)")
         ax.set_ylabel("Re n²")

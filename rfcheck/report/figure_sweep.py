@@ -31,7 +31,7 @@ import math
 
 import numpy as np
 
-from rfcheck.report.figures import _mpl, _svg
+from rfcheck.report.figures import _mpl, _svg, plain_log_ticks
 
 
 def _patch(**kw):
@@ -395,6 +395,7 @@ def margin_line_figure(sweep: dict) -> dict | None:
     finite = values[np.isfinite(values)]
     if finite.size and np.abs(finite).max() > 5:
         ax.set_yscale("symlog", linthresh=0.1)
+        plain_log_ticks(ax, "y")
         drawn.append("margin axis linear within ±0.1, logarithmic beyond")
     ax.axhline(0.0, color="black", lw=2.0, gid="el-margin-zero")
     drawn.append("bold line: zero margin")

@@ -51,6 +51,43 @@ class Drawn:
         return [text for name, text in parts if name in self]
 
 
+_SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
+
+
+def power_label(value: float, pos=None) -> str:
+    """A tick label of a log or symlog axis in plain text: 0, 1, 10, 10², −10³, 0.5 (powers
+    of ten with Unicode superscripts; matplotlib's default writes them as mathtext, whose
+    parser costs ~0.3 s to build in every process that draws one)."""
+    import math
+
+    v = float(value)
+    if v == 0 or not math.isfinite(v):
+        return "0" if v == 0 else ""
+    a, sign = abs(v), ("−" if v < 0 else "")
+    k = round(math.log10(a))
+    if math.isclose(a, 10.0 ** k, rel_tol=1e-9):
+        return sign + ("1" if k == 0 else "10" if k == 1 else "10" + str(k).translate(_SUPERSCRIPT))
+    return sign + f"{a:g}"
+
+
+def plain_log_ticks(ax, which: str = "xy") -> None:
+    """Label the log/symlog axes of `ax` with :func:`power_label` (major ticks; the minor
+    ticks of a log axis get plain numbers only where the axis spans less than a decade)."""
+    import math
+
+    from matplotlib.ticker import FuncFormatter, NullFormatter
+
+    for name in which:
+        axis = ax.xaxis if name == "x" else ax.yaxis
+        axis.set_major_formatter(FuncFormatter(power_label))
+        if axis.get_scale() == "log":
+            lo, hi = sorted(ax.get_xlim() if name == "x" else ax.get_ylim())
+            few = lo > 0 and math.log10(hi / lo) < 1.0
+            axis.set_minor_formatter(FuncFormatter(power_label) if few else NullFormatter())
+        else:
+            axis.set_minor_formatter(NullFormatter())
+
+
 def sentence(text: str) -> str:
     """`text` with its first letter in upper case (the rest as it is: ids, units, ECR)."""
     return text[:1].upper() + text[1:]
