@@ -455,7 +455,9 @@ def geometric_optics(ctx: Context, *, max_go_parameter: float,
         i = int(np.argmax(c.go_max)) if c.go_max.size else 0
         top = float(c.go_max[i]) if c.go_max.size else 0.0
         at = c.go_at[i] if c.go_max.size else np.zeros(3)
-        where = (f"largest 1/(kL) {top:.3g} at z = {_mm(float(at[2]))}, r = "
+        value = (f"{top:.3g}" if top <= 1e3 else
+                 "above 1e3 (n → 0: a cutoff met at normal incidence)")
+        where = (f"largest 1/(kL) {value} at z = {_mm(float(at[2]))}, r = "
                  f"{_mm(float(np.hypot(at[0], at[1])))}")
         band = (f"points within |B/B_res − 1| ≤ {c.go_band:.2g} of the layer (the Doppler "
                 "width at the lowest T_e) left out")

@@ -196,6 +196,7 @@ def test_a_normal_beam_at_a_cutoff_hands_over_to_the_one_dimensional_full_wave(w
     first = ret.parts["R"].first
     assert first.reflected == pytest.approx(1.0, abs=1e-3)
     assert "1-D cold full wave along the axis takes over" in f.message
+    assert "above 1e3 (n → 0" in f.message  # unbounded at the cutoff: not printed as a number
     assert "reflects 100 %" in f.message
 
 
