@@ -32,6 +32,13 @@ The study, per feed, at each envelope corner of peak density (min, max) × curre
   for the R/X wave met from the low-field side, a lower estimate) at the lowest T_e, with
   L_B = |B| / |dB/ds| along the ray at the layer; the L wave has no electron resonance
   (A = 0). Collisional damping along the way is deposited where it happens.
+* **Returns.** Where each ray that comes back crosses the launcher plane, and its distance
+  there from the launcher position (in the plane): the rules split the returned power into
+  what falls on the feed's window aperture and what lands on the end wall around it.
+* **Validity.** The largest 1/(kL) (``Ray.go_parameter``) on each ray's path before its end,
+  leaving out the points within the thermal Doppler width of the layer
+  (:func:`resonance_band`), where the cold ray ends by construction and the absorption model
+  takes over; the rules compare it with their threshold.
 """
 
 from __future__ import annotations
@@ -43,6 +50,7 @@ import numpy as np
 
 from rfcheck.model import FieldMap, Feed
 from rfcheck.physics.absorption import optical_depth_o1, optical_depth_o2, optical_depth_x2
+from rfcheck.physics.constants import C, E_CHARGE, M_E
 from rfcheck.physics.frequencies import ecr_field
 from rfcheck.physics.rays import GridField, trace_rays
 from rfcheck.physics.rays import _beam_rays as beam_rays
@@ -93,6 +101,33 @@ class RayCorner:
     absorbed: float                   # first pass: collisional + at the layer
     deposits: np.ndarray              # (M, 4): x, y, z (m), power fraction
     in_target: float = math.nan       # share of the deposited power inside the target
+    # where each returning ray crosses the launcher plane (nan rows for the others) and its
+    # distance there from the launcher position, in the plane (m)
+    return_points: np.ndarray = field(default_factory=lambda: np.zeros((0, 3)))
+    return_offsets: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    # per ray: the largest 1/(kL) on the path before its end outside the resonance band, and
+    # where it is (m)
+    go_max: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    go_at: np.ndarray = field(default_factory=lambda: np.zeros((0, 3)))
+    go_band: float = 0.0              # relative half-width of |B| round B_res left out
+
+    def window_split(self, radius: float | None) -> tuple[float, float]:
+        """(on the window, on the end wall): the returned share ("launcher") split by the
+        distance from the launcher at which each ray crosses the launcher plane; within
+        `radius` is on the window. `radius` None (the window's size not declared): all of it
+        on the window, the worst case for the window."""
+        total = self.shares.get("launcher", 0.0)
+        if radius is None or not self.return_offsets.size:
+            return total, 0.0
+        back = np.array([e == "launcher" for e in self.ends])
+        p_end = np.array([float(r.power[-1]) for r in self.rays])
+        on = back & (self.return_offsets <= radius)
+        window = float(np.sum(self.weights[on] * p_end[on]))
+        return window, max(0.0, total - window)
+
+    def go_failing(self, limit: float) -> np.ndarray:
+        """Mask of the rays on which 1/(kL) exceeds `limit` before their end."""
+        return self.go_max > limit
 
 
 @dataclass
@@ -308,6 +343,38 @@ def _layer_fraction(study: RayStudy, ray, b, dens, t_e: float, f: float) -> floa
     return float(1.0 - math.exp(-tau)) if math.isfinite(tau) and tau > 0 else 0.0
 
 
+def launcher_point(launch, ch) -> np.ndarray:
+    """The launcher position the study starts from (z within the chamber)."""
+    origin = launch.origin.copy()
+    origin[2] = min(max(origin[2], ch.z_start), ch.z_end)
+    return origin
+
+
+def resonance_band(t_e: float) -> float:
+    """Relative half-width of |B| round the layer left out of the geometric-optics reading:
+    the thermal Doppler width of the cyclotron resonance, |ω − lω_c| ≲ k∥ v_te, with
+    v_te = √(2 T_e/m_e) and |N∥| = 1 (Bornatici et al. 1983, the resonance width of the weakly
+    relativistic absorption; |N∥| = 1 from memory as the lower bound of a launched vacuum
+    wave's). Within it the cold dispersion itself fails (the wave's n → ∞ there in cold
+    theory) and the absorption model of the layer stands for the rays; the lowest T_e gives
+    the narrowest band, the most points read."""
+    return math.sqrt(2.0 * t_e * E_CHARGE / M_E) / C
+
+
+def _go_reading(study, ray, b, band: float) -> tuple[float, np.ndarray]:
+    """The largest 1/(kL) on `ray` before its end outside the resonance band, and where."""
+    go = np.asarray(ray.go_parameter, dtype=float)
+    keep = np.ones(go.shape, bool)
+    keep[-1] = False  # the end point: the stop itself (the layer, a wall, the plane)
+    if len(ray.path) > 1:
+        y = np.linalg.norm(b(ray.path), axis=1) / study.b_res - 1.0
+        keep &= np.abs(y) > band
+    if not np.any(keep):
+        return 0.0, ray.path[0].copy()
+    i = int(np.flatnonzero(keep)[np.argmax(go[keep])])
+    return float(go[i]), ray.path[i].copy()
+
+
 def _corner(study, rays, weights, n_peak, scale, b, dens, t_e, ch, far, f) -> RayCorner:
     ends = [_end_of(r, ch, far) for r in rays]
     a = np.array([_layer_fraction(study, r, b, dens, t_e, f) if e == "layer" else 0.0
@@ -331,5 +398,21 @@ def _corner(study, rays, weights, n_peak, scale, b, dens, t_e, ch, far, f) -> Ra
     shares["not traced"] = max(0.0, 1.0 - float(weights.sum()))
     reach = shares["layer"]
     absorbed = collisional + float(np.sum(weights * p_end * a))
+    # where the returning rays cross the launcher plane (their ends lie on it), and their
+    # distance from the launcher in that plane
+    origin = launcher_point(study.feed.launch, ch)
+    u = study.feed.launch.wave_direction
+    points = np.full((len(rays), 3), np.nan)
+    offsets = np.full(len(rays), np.nan)
+    for i, (r, e) in enumerate(zip(rays, ends)):
+        if e == "launcher":
+            d = r.end - origin
+            points[i] = r.end
+            offsets[i] = float(np.linalg.norm(d - np.dot(d, u) * u))
+    band = resonance_band(t_e)
+    go = [_go_reading(study, r, b, band) for r in rays]
     return RayCorner(n_peak, scale, tuple(rays), weights, ends, a, shares, reach, absorbed,
-                     np.array(deposits, dtype=float).reshape(-1, 4))
+                     np.array(deposits, dtype=float).reshape(-1, 4),
+                     return_points=points, return_offsets=offsets,
+                     go_max=np.array([g for g, _ in go]),
+                     go_at=np.array([p for _, p in go]).reshape(-1, 3), go_band=band)

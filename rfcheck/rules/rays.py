@@ -9,12 +9,15 @@ limits. A launch that is one ray on the axis is covered by the 1-D launch path
 
 from __future__ import annotations
 
+import math
 from collections.abc import Iterator
 
 import numpy as np
 
 from rfcheck.analysis.launch_path import NEAR_FIELD
-from rfcheck.analysis.rays import RayCorner, RayStudy, ray_study, traced
+from rfcheck.analysis.load import plasma_return
+from rfcheck.analysis.rays import RayCorner, RayStudy, ray_study, scaled_field, traced
+from rfcheck.analysis.window import window_analysis
 from rfcheck.findings import Finding, Quantity, Severity
 from rfcheck.model import Feed
 from rfcheck.units import format_fraction as _frac
@@ -262,3 +265,248 @@ def deposition_region(ctx: Context, *, min_share: float) -> Iterator[Finding]:
             message=(f"{_frac(c.in_target)} of the deposited power ({_frac(total)} of the "
                      f"launched power) lies in the target ({target.label}) at the worst "
                      f"corner; {centre}; {study.assumptions()}"))
+
+
+def _mm(x: float) -> str:
+    return f"{x * 1e3:.4g} mm"
+
+
+def _skip_traced(ctx: Context, feed: Feed, requirement: str) -> tuple[bool, Finding | None]:
+    """(skip, finding) for the two readings of the study added after the first four rules: a
+    feed whose launch is not traced gets no finding from them (the four rays.* findings of
+    that feed already say why no ray is traced and which 1-D results cover it, and the
+    approved results of the on-axis examples stay as they were); a traced feed the rays do
+    not judge gets the not-applicable finding of :func:`_skip`."""
+    if not traced(feed):
+        return True, None
+    skipped = _skip(ctx, feed, requirement)
+    return skipped is not None, skipped
+
+
+@rule("rays.window-return", severity=Severity.ERROR,
+      summary="Power the first pass of the rays returns onto the feed's window stays within "
+              "what the window is rated for; what lands on the end wall around it is stated.",
+      options={"max_window_fraction": _ratio("largest fraction of the forward power that may "
+                                             "return onto the window when it declares no "
+                                             "max_absorbed_power")},
+      applies=_APPLIES + " (no finding for other launches)")
+def window_return(ctx: Context, *, max_window_fraction: float) -> Iterator[Finding]:
+    """What it checks
+    Where the rays that come back through the launcher plane cross it. Those within the
+    window's radius (half its diameter) of the launcher position, in that plane, return onto
+    the window's aperture; the others land on the end wall around the launcher. The power
+    onto the window, P_fwd × its share, is compared per window of the feed with what the
+    window is rated for: with a max_absorbed_power and a lossy window, the returned peak
+    power whose absorption (the window's worst absorptance A of window.absorbed-power, at the
+    duty cycle) together with the forward pass's keeps within that rating; otherwise
+    max_window_fraction of the forward power. A window without a diameter takes all the
+    returned power (the worst case, said in the finding). Worst envelope corner.
+
+    Why it matters
+    Power coming back onto the window heats it a second time and raises the field in it and
+    in front of it (arcs on the vacuum face); it then goes on to the generator (rays.wall-load
+    judges that total). What lands beside the window heats the end wall.
+
+    Equation
+    P_win = P_fwd Σ_{returned rays, |ρ_i − ρ_0| ≤ D/2} w_i P_i; limit
+    (P_abs,max − A P_fwd δ) / (A δ) with the duty cycle δ, else max_window_fraction · P_fwd.
+
+    Options
+    max_window_fraction: limit without a rating (default 10 %, common practice, as
+    rays.wall-load).
+
+    References
+    Stix (1992) ch. 4 (energy flow along rays); V. L. Ginzburg, The Propagation of
+    Electromagnetic Waves in Plasmas (1970), the ray in a linear layer (where a tilted ray
+    comes back); D. M. Pozar, Microwave Engineering (2012) §4.4 (absorption of a lossy
+    two-port).
+    """
+    for feed in ctx.model.feeds:
+        req = "first-pass power returning onto the window within its rating"
+        skip, skipped = _skip_traced(ctx, feed, req)
+        if skip:
+            yield from ([skipped] if skipped else [])
+            continue
+        windows = [w for w in ctx.model.windows if w.feed == feed.id]
+        if not windows:
+            yield ctx.not_applicable(f"feed {feed.id}", req,
+                                     "the feed declares no window: the power back at the "
+                                     "launcher is judged by rays.wall-load")
+            continue
+        study = ray_study(ctx, feed)
+        for window in windows:
+            yield _window_finding(ctx, feed, window, study, max_window_fraction)
+
+
+def _window_finding(ctx, feed, window, study, fraction) -> Finding:
+    radius = None if window.diameter is None else window.diameter / 2.0
+    c = study.worst(lambda k: k.window_split(radius)[0], "max")
+    on, wall = c.window_split(radius)
+    p_fwd = feed.power
+    a = (window_analysis(ctx, window).absorption.value
+         if window.max_absorbed_power is not None else float("nan"))
+    if window.max_absorbed_power is not None and a > 0 and feed.duty_cycle > 0:
+        p_avg = feed.average_power
+        limit = max(0.0, window.max_absorbed_power - a * p_avg) / (a * feed.duty_cycle)
+        why = (f"the returned peak power the window's max_absorbed_power "
+               f"{window.max_absorbed_power:.4g} W leaves after the forward pass's "
+               f"{a * p_avg:.3g} W, absorbed at the window's worst absorptance {a:.3g} "
+               f"(window.absorbed-power) and duty {_frac(feed.duty_cycle)}; the same "
+               f"absorptance from the plasma side (exact for a symmetric stack)")
+        if limit == 0.0:
+            why += "; the forward pass alone uses the whole rating (window.absorbed-power)"
+        req = "first-pass power returning onto the window ≤ what its max_absorbed_power leaves"
+    else:
+        limit = fraction * p_fwd
+        reason = ("the window declares no max_absorbed_power"
+                  if window.max_absorbed_power is None else
+                  "the window's absorptance is zero or undefined")
+        why = f"max_window_fraction {_frac(fraction)} of the forward power ({reason})"
+        req = f"first-pass power returning onto the window ≤ {_frac(fraction)} of forward"
+    if radius is None:
+        size = ("its size is not declared: all the returned power is taken onto the window "
+                "(the worst case)")
+    else:
+        size = (f"aperture radius {_mm(radius)} round the launcher in the launcher plane (normal "
+                "to the launch direction; the window seen through the launcher, the line "
+                "between them not traced)")
+    back = c.shares["launcher"]
+    p_on = on * p_fwd
+    msg = (f"{_frac(on)} of the forward power ({p_on:.4g} W) returns onto window {window.id} "
+           f"on the first pass at the worst corner, {_frac(wall)} ({wall * p_fwd:.4g} W) lands "
+           f"on the end wall around the launcher (back through the launcher plane: "
+           f"{_frac(back)}); {size}; limit {limit:.4g} W: {why}; {study.assumptions()}")
+    return ctx.finding(
+        f"window {window.id}", req, passed=p_on <= limit,
+        measured=Quantity(p_on, "W"), limit=Quantity(limit, "W"),
+        margin=Quantity(limit - p_on, "W"), worst_case=_where(study, c), message=msg,
+        details={"feed": feed.id, "window_share": on, "end_wall_share": wall,
+                 "returned_share": back,
+                 "window_radius": None if radius is None else radius})
+
+
+#: the 1-D cold full wave along the axis stands for the rays where the launch is within this
+#: angle of the axis (cos 10° = 0.985: the axial wave number within 1.5 % of k) ...
+AXIS_TILT = math.radians(10.0)
+#: ... and |B| at every failing point is within this of the on-axis |B| at the same z
+AXIS_FIELD = 0.02
+
+
+@rule("rays.geometric-optics", severity=Severity.WARNING,
+      summary="The rays are in the geometric-optics regime (1/(kL) small) on their path; "
+              "where not, the finding says which result takes over.",
+      options={"max_go_parameter": Option(
+                   "ratio", "largest 1/(kL) on a ray's path that geometric optics is trusted at",
+                   valid=Range(0.0, 10.0, "1/(kL): the reduced wavelength over the gradient "
+                               "scale; above 10 the wave does not see a gradient at all",
+                               "1", low_open=True)),
+               "max_doubtful_share": _ratio("largest share of the launched power on rays "
+                                            "that exceed it")},
+      applies=_APPLIES + " (no finding for other launches)")
+def geometric_optics(ctx: Context, *, max_go_parameter: float,
+                     max_doubtful_share: float) -> Iterator[Finding]:
+    """What it checks
+    Every ray carries 1/(kL) along its path, k = n ω/c and L = n²/|∇n²| the scale length of
+    its refractive index (rfcheck.physics.rays). Per envelope corner, the share of the
+    launched power on rays whose largest 1/(kL) before their end exceeds max_go_parameter;
+    points within the thermal Doppler width of the layer, |B/B_res − 1| ≤ √(2T_e/m_e)/c at
+    the lowest T_e, are left out (the cold ray ends there by construction and the absorption
+    model stands for it). Worst corner. Where the share exceeds max_doubtful_share and the
+    launch is within 10° of the axis with |B| at every failing point within 2 % of the
+    on-axis |B| at its z, the 1-D cold full wave along the axis (load.plasma-reflection,
+    access.reaches-resonance) takes over, and its numbers for the feed's intended part are
+    quoted; otherwise the finding says that no 1-D result covers it.
+
+    Why it matters
+    Ray tracing is the short-wavelength limit of the wave equation: where the medium changes
+    within a reduced wavelength (a cutoff at normal incidence, a steep edge) the ray's path
+    and power are not the wave's, and the rays.* findings built on them are doubtful.
+
+    Equation
+    1/(kL) = |∇n²| / (k0 n³); linear layer n² = 1 − z/L_n at normal incidence:
+    1/(kL) = 1/(k0 L_n n³), which grows without bound at the cutoff n = 0; oblique at θ:
+    largest at the turning point n = sin θ, 1/(k0 L_n sin³θ).
+
+    Options
+    max_go_parameter: default 1 (the reduced wavelength λ/2π equals the gradient scale;
+    geometric optics needs 1/(kL) ≪ 1; from memory). max_doubtful_share: default 5 %
+    (project choice).
+
+    References
+    Stix (1992) ch. 4; P. M. Bellan, Fundamentals of Plasma Physics (2006) ch. 5 (WKB
+    validity); Ginzburg (1970) (the linear layer); M. Bornatici et al., Nucl. Fusion 23
+    (1983) 1153 (resonance width).
+    """
+    for feed in ctx.model.feeds:
+        req = (f"share of the launched power on rays with 1/(kL) > {max_go_parameter:.3g} ≤ "
+               f"{_frac(max_doubtful_share)}")
+        skip, skipped = _skip_traced(ctx, feed, req)
+        if skip:
+            yield from ([skipped] if skipped else [])
+            continue
+        study = ray_study(ctx, feed)
+
+        def share(k):
+            return float(np.sum(k.weights[k.go_failing(max_go_parameter)]))
+
+        c = study.worst(share, "max")
+        doubtful = share(c)
+        fail = c.go_failing(max_go_parameter)
+        i = int(np.argmax(c.go_max)) if c.go_max.size else 0
+        top = float(c.go_max[i]) if c.go_max.size else 0.0
+        at = c.go_at[i] if c.go_max.size else np.zeros(3)
+        value = (f"{top:.3g}" if top <= 1e3 else
+                 "above 1e3 (n → 0: a cutoff met at normal incidence)")
+        where = (f"largest 1/(kL) {value} at z = {_mm(float(at[2]))}, r = "
+                 f"{_mm(float(np.hypot(at[0], at[1])))}")
+        band = (f"points within |B/B_res − 1| ≤ {c.go_band:.2g} of the layer (the Doppler "
+                "width at the lowest T_e) left out")
+        passed = doubtful <= max_doubtful_share
+        if passed:
+            tail = "the ray results stand"
+        else:
+            tail = _handover(ctx, feed, study, c, fail)
+        yield ctx.finding(
+            f"feed {feed.id}", req, passed=passed,
+            measured=Quantity(doubtful, "1"), limit=Quantity(max_doubtful_share, "1"),
+            margin=Quantity(max_doubtful_share - doubtful, "1"), worst_case=_where(study, c),
+            message=(f"{_frac(doubtful)} of the launched power is on rays with 1/(kL) > "
+                     f"{max_go_parameter:.3g} before their end at the worst corner "
+                     f"({int(fail.sum())} of {len(c.rays)} rays; {where}; {band}); {tail}; "
+                     f"{study.assumptions()}"),
+            details={"doubtful_share": doubtful, "largest_go_parameter": top,
+                     "resonance_band": c.go_band})
+
+
+def _handover(ctx, feed, study, c, fail) -> str:
+    """What takes over where geometric optics fails (the 1-D axis result, where it applies)."""
+    doubt = "the ray results (rays.*) are doubtful for that share"
+    launch = feed.launch
+    pts = c.go_at[fail]
+    b = scaled_field(study.grid, c.scale)
+    axis = pts.copy()
+    axis[:, :2] = 0.0
+    b_pt = np.linalg.norm(b(pts), axis=1)
+    b_ax = np.linalg.norm(b(axis), axis=1)
+    spread = float(np.max(np.abs(b_pt / np.maximum(b_ax, 1e-300) - 1.0))) if len(pts) else 0.0
+    if launch.tilt > AXIS_TILT or spread > AXIS_FIELD:
+        why = (f"tilt {math.degrees(launch.tilt):.3g}° > {math.degrees(AXIS_TILT):.3g}°"
+               if launch.tilt > AXIS_TILT else
+               f"|B| at the failing points differs from the axis by up to {_frac(spread)} "
+               f"(> {_frac(AXIS_FIELD)})")
+        return (f"{doubt}, and no 1-D result covers it ({why}): a 2-D/3-D full-wave "
+                "calculation would settle it")
+    ret = plasma_return(ctx, feed)
+    if ret is None:
+        return f"{doubt}; the 1-D axis path has no launched part to stand for it"
+    mode = launch.mode if launch.mode in ret.parts else next(iter(ret.parts))
+    ld = ret.parts[mode]
+    first = ld.first
+    return (f"{doubt}; the launch is within {math.degrees(AXIS_TILT):.3g}° of the axis and |B| "
+            f"at the failing points within {_frac(AXIS_FIELD)} of the axis value (up to "
+            f"{_frac(spread)}), so the 1-D cold full wave along the axis takes over "
+            f"(load.plasma-reflection, access.reaches-resonance): the {mode} part at its worst "
+            f"corner (peak density {ret.corner.density:.3g} m^-3, current scale "
+            f"{ret.corner.scale:.3g}) reflects {_frac(first.reflected)}, absorbs "
+            f"{_frac(first.absorbed)} and sends {_frac(first.transmitted)} to the far end on "
+            f"the first pass, {_frac(ld.returned)} returned with the far end")
