@@ -142,13 +142,16 @@ class RayStudy:
 
 def aperture_launch(launch, f: float, origin: np.ndarray, direction: np.ndarray, b_nominal):
     """Rays of an aperture launch (:func:`rfcheck.physics.aperture_pattern.aperture_rays`):
-    (starts, directions, shares, orientations, (sampling text, orientation text)). The E direction: at
-    ``e_angle_to_field`` from the projection of B (nominal currents, at the launcher) on the
-    aperture plane, both signs of the angle (the pattern is mirror symmetric; which sense the
-    angle turns is not declared); where no angle is declared, or B lies within
-    ``ALONG_FIELD`` of the boresight (no projection to measure it from), two orientations: E
-    along the launcher's radial direction (x on the axis) and E across it. Each orientation's
-    rays follow the other's; the study keeps the corners of every orientation."""
+    (starts, directions, shares, orientations, (sampling text, orientation text)).
+
+    The E direction: at ``e_angle_to_field`` from the projection of B (nominal currents, at
+    the launcher) on the aperture plane, both senses of the angle unless it is 0 or 90° (the
+    pattern is mirror symmetric, but which way the angle turns is not declared). Where no
+    angle is declared, the launch is circularly polarised, or B lies within ``ALONG_FIELD``
+    of the boresight (no projection to measure the angle from): two orientations, E along
+    the launcher's radial direction (x on the axis) and E across it. Each orientation's rays
+    follow the other's; the study keeps the corners of every orientation, so every rule
+    takes the worse."""
     ap = launch.aperture
     sizes = (dict(width=ap.width, height=ap.height) if ap.shape == "rectangular"
              else dict(radius=ap.radius))
