@@ -1064,6 +1064,15 @@ class _CrossCheck:
                           f"{f.frequency / 1e9:.4g} GHz: the guide is cut off; expected a "
                           f"radius above {ap.radius * f_c / f.frequency * 1e3:.4g} mm")
             what, key = "its radius", "radius"
+        from rfcheck.physics.aperture_pattern import MAX_WAVELENGTHS
+
+        across = max(ap.width, ap.height) if ap.shape == "rectangular" else 2 * ap.radius
+        if across > MAX_WAVELENGTHS * lam:
+            self.fail(loc + (key,),
+                      f"the aperture is {across / lam:.4g} wavelengths across at "
+                      f"{f.frequency / 1e9:.4g} GHz; expected at most {MAX_WAVELENGTHS} "
+                      f"({MAX_WAVELENGTHS * lam * 1e3:.5g} mm): a mouth that large radiates a "
+                      "beam (give it as beam = { waist = ... })")
         if off + reach >= radius:
             self.fail(loc + (key,),
                       f"the aperture ({what} {reach * 1e3:.4g} mm, {off * 1e3:.4g} mm off the "

@@ -37,8 +37,9 @@ and `rings` rings in θ (the cap half a ring wide, as the beam's central disc), 
 `per_ring` sectors in φ (odd rings turned by half a sector); each sector's share is the
 integral of P over its solid angle inside the main lobe (24 × 24 Gauss–Legendre nodes per
 cell), divided by the power radiated into the forward hemisphere (composite Gauss–Legendre,
-16 nodes per segment, at least ~16 nodes per lobe of the pattern); its ray leaves along the
-power-weighted mean direction of the cell.
+16 nodes per segment, at least 12 nodes per lobe of the pattern); its ray leaves along the
+power-weighted mean direction of the cell. An aperture more than ``MAX_WAVELENGTHS`` (100)
+across is refused: it radiates a beam (give it as one).
 """
 
 from __future__ import annotations
@@ -53,13 +54,16 @@ from rfcheck.physics.constants import C as C_LIGHT
 from rfcheck.physics.domain import check_index, guard_public
 
 __all__ = ["te10_h_plane", "te11_h_plane", "aperture_power_pattern", "aperture_main_lobe",
-           "aperture_radiated_power", "aperture_rays", "SHAPES"]
+           "aperture_radiated_power", "aperture_rays", "SHAPES", "MAX_WAVELENGTHS"]
 
 SHAPES = ("rectangular", "circular")
 #: χ'11, j11, j'12: first zero of J1', first zero of J1, second zero of J1'
 CHI_11 = float(special.jnp_zeros(1, 1)[0])
 J_11 = float(special.jn_zeros(1, 1)[0])
 JP_12 = float(special.jnp_zeros(1, 2)[1])
+#: the largest aperture (its larger side, or diameter) in wavelengths: the hemisphere
+#: quadrature keeps ≥ 12 nodes per lobe up to here
+MAX_WAVELENGTHS = 100
 _GL16 = np.polynomial.legendre.leggauss(16)
 _GL_CELL = np.polynomial.legendre.leggauss(24)
 
@@ -68,9 +72,9 @@ def te10_h_plane(x: ArrayLike) -> NDArray:
     """h(X) = cos X / (1 − (2X/π)²), the H-plane factor of the TE10 aperture (1 at X = 0;
     π/4 at the removable singularity X = ±π/2)."""
     x = np.asarray(x, dtype=float)
-    den = 1.0 - (2.0 * x / math.pi) ** 2
-    near = np.abs(np.abs(x) - math.pi / 2) < 1e-7
-    with np.errstate(divide="ignore", invalid="ignore"):
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        den = 1.0 - (2.0 * x / math.pi) ** 2
+        near = np.abs(np.abs(x) - math.pi / 2) < 1e-7
         out = np.cos(x) / np.where(near, 1.0, den)
     return np.where(near, math.pi / 4, out)
 
@@ -79,9 +83,9 @@ def te11_h_plane(z: ArrayLike) -> NDArray:
     """2 J1'(Z) / (1 − (Z/χ'11)²), the H-plane factor of the TE11 aperture (1 at Z = 0; the
     limit (χ − 1/χ) J1(χ) at Z = χ'11)."""
     z = np.asarray(z, dtype=float)
-    near = np.abs(z - CHI_11) < 1e-7
-    den = 1.0 - (z / CHI_11) ** 2
-    with np.errstate(divide="ignore", invalid="ignore"):
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        near = np.abs(z - CHI_11) < 1e-7
+        den = 1.0 - (z / CHI_11) ** 2
         out = 2.0 * special.jvp(1, z) / np.where(near, 1.0, den)
     return np.where(near, (CHI_11 - 1.0 / CHI_11) * special.j1(CHI_11), out)
 
@@ -109,6 +113,10 @@ def _sizes(frequency, shape, width, height, radius) -> tuple[float, tuple[float,
     for n, v in zip(names, dims):
         if v is None or not (math.isfinite(float(v)) and float(v) > 0):
             raise ValueError(f"a {shape} aperture needs a positive finite {n} (m)")
+    across = max(dims) if shape == "rectangular" else 2.0 * dims[0]
+    if k * across > 2 * math.pi * MAX_WAVELENGTHS:
+        raise ValueError(f"the aperture is more than {MAX_WAVELENGTHS} wavelengths across: "
+                         "such a mouth radiates a beam (give it as a Gaussian beam)")
     if shape == "rectangular" and k * float(width) <= math.pi:
         raise ValueError("the TE10 guide is cut off: width must exceed half a wavelength")
     if shape == "circular" and k * float(radius) <= CHI_11:
@@ -183,10 +191,10 @@ def aperture_radiated_power(frequency: float, shape: str, *, width: float | None
     symmetric in both principal planes) times 4."""
     k, dims = _sizes(frequency, shape, width, height, radius)
     size = k * (max(dims) if shape == "rectangular" else 2.0 * dims[0])
-    # at least ~16 nodes per lobe up to k D ≈ 480 (D ≈ 76 λ); coarser beyond (128 segments)
-    t_nodes, t_w = _composite(0.0, math.pi / 2, int(min(128, math.ceil(size / 4) + 8)))
-    p_nodes, p_w = _composite(0.0, math.pi / 2,
-                              int(min(128, math.ceil(size / (2 * math.pi)) + 4)))
+    # ~k D / 4 lobes over θ and k D / 2π over a quadrant of φ: 16 nodes per segment, ≥ 12
+    # nodes per lobe up to MAX_WAVELENGTHS
+    t_nodes, t_w = _composite(0.0, math.pi / 2, math.ceil(size / 4) + 8)
+    p_nodes, p_w = _composite(0.0, math.pi / 2, math.ceil(size / (2 * math.pi)) + 4)
     total = 0.0
     kw = dict(width=width, height=height, radius=radius)
     for i in range(0, len(t_nodes), 64):
