@@ -209,6 +209,8 @@ def test_rays_in_vacuum_stay_straight_and_hit_the_far_wall_where_their_angles_sa
     pytest.param(dict(shape="circular", radius=0.9 * CHI / K), "cut off", id="TE11-below-cutoff"),
     pytest.param(dict(shape="rectangular", width=LAM), "height", id="missing-height"),
     pytest.param(dict(shape="horn", radius=LAM), "shape", id="unknown-shape"),
+    pytest.param(dict(shape="circular", radius=50.5 * LAM), "100 wavelengths",
+                 id="beyond-the-quadrature"),
 ])
 def test_bad_apertures_are_refused(kwargs, words):
     shape = kwargs.pop("shape")
