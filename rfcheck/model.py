@@ -252,6 +252,22 @@ class LaunchBeam:
 
 
 @dataclass(frozen=True)
+class LaunchAperture:
+    """The mouth of an open waveguide or horn: "rectangular" (TE10 over `width` × `height`, m;
+    E along the height) or "circular" (TE11 over `radius`, m); uniform phase across it."""
+
+    shape: Literal["rectangular", "circular"]
+    width: float = 0.0
+    height: float = 0.0
+    radius: float = 0.0
+
+    def describe(self) -> str:
+        if self.shape == "rectangular":
+            return f"a TE10 aperture {self.width * 1e3:.3g} × {self.height * 1e3:.3g} mm"
+        return f"a TE11 aperture of radius {self.radius * 1e3:.3g} mm"
+
+
+@dataclass(frozen=True)
 class LaunchTarget:
     """The intended deposition region of a launch: z_start..z_end (m) within `radius` of the
     axis (None: the chamber radius); `label` says how the spec gave it."""
@@ -286,6 +302,7 @@ class Launch:
     tilt_azimuth: float = 0.0  # rad, plane of the tilt, from +x towards +y
     beam: LaunchBeam | None = None  # a Gaussian beam; None: a single ray
     target: LaunchTarget | None = None  # the intended deposition region
+    aperture: LaunchAperture | None = None  # a waveguide mouth or horn; None: no pattern
 
     @property
     def off_axis(self) -> float:
@@ -294,9 +311,10 @@ class Launch:
 
     @property
     def traced(self) -> bool:
-        """Whether the launch is off axis, oblique or a beam: the rays judge it (the 1-D axis
-        path covers the others)."""
-        return self.off_axis > 0 or self.tilt > 0 or self.beam is not None
+        """Whether the launch is off axis, oblique, a beam or an aperture's pattern: the rays
+        judge it (the 1-D axis path covers the others)."""
+        return (self.off_axis > 0 or self.tilt > 0 or self.beam is not None
+                or self.aperture is not None)
 
     @property
     def origin(self) -> np.ndarray:

@@ -325,6 +325,23 @@ class LaunchBeamSpec(_Strict):
 LaunchTilt = _quantity("angle", non_negative=True, key="launch_tilt")
 
 
+_APERTURE_EXAMPLES = {"width": "86.36 mm", "height": "43.18 mm", "radius": "45 mm"}
+
+
+class LaunchApertureSpec(_Strict):
+    """The mouth of an open waveguide or a horn the launcher radiates from: rectangular
+    (TE10 over width × height, E along the height) or circular (TE11 over the radius), with a
+    uniform phase across it (a horn's flare phase error is not modelled)."""
+
+    shape: Literal["rectangular", "circular"] = Field(
+        description='"rectangular" (TE10: width and height) or "circular" (TE11: radius)')
+    width: PosLength | None = Field(None, description="rectangular: the side across which the "
+                                                      "TE10 field varies (the H side), e.g. "
+                                                      "\"86.36 mm\"")
+    height: PosLength | None = Field(None, description="rectangular: the side along E")
+    radius: PosLength | None = Field(None, description="circular: the radius of the mouth")
+
+
 class LaunchTargetSpec(_Strict):
     """Where the launch is meant to deposit its power: a slice of the chamber (start, end)
     or a landmark with a half width, optionally within a radius of the axis."""
@@ -364,6 +381,10 @@ class LaunchSpec(_Strict):
     beam: LaunchBeamSpec | None = Field(
         None, description='a Gaussian beam: { waist = "8 mm", waist_distance = "40 mm" } '
                           '(not declared: a single ray along the launch direction)')
+    aperture: LaunchApertureSpec | None = Field(
+        None, description='a waveguide mouth or horn with its radiation pattern: { shape = '
+                          '"rectangular", width = "86.36 mm", height = "43.18 mm" } or { shape '
+                          '= "circular", radius = "45 mm" } (not with beam)')
     target: LaunchTargetSpec | None = Field(
         None, description='the intended deposition region: { start = "120 mm", end = '
                           '"180 mm" } or { landmark = "resonance-zone", half_width = "10 mm" }')
@@ -995,6 +1016,68 @@ class _CrossCheck:
                       f"the beam (waist {la.beam.waist * 1e3:.4g} mm, {off * 1e3:.4g} mm off "
                       f"the axis) does not fit inside the chamber radius "
                       f"({radius * 1e3:.4g} mm); expected off-axis distance + waist below it")
+        if la.aperture is not None:
+            self._launch_aperture(f, la, loc + ("aperture",), off, radius)
+
+    def _launch_aperture(self, f: FeedSpec, la: LaunchSpec, loc: tuple, off: float,
+                         radius: float) -> None:
+        """An aperture launch: not with a beam, the sizes its shape needs (and no others), a
+        guide above cutoff at the feed's frequency, and the mouth inside the chamber."""
+        from rfcheck.physics.constants import C as C_LIGHT
+
+        ap = la.aperture
+        if la.beam is not None:
+            self.fail(loc, "a launch radiates either a Gaussian beam or from an aperture; give "
+                           "beam or aperture, not both")
+        needs = ("width", "height") if ap.shape == "rectangular" else ("radius",)
+        bad = False
+        for key in ("width", "height", "radius"):
+            given = getattr(ap, key) is not None
+            if key in needs and not given:
+                self.fail(loc + (key,), f"a {ap.shape} aperture needs {key} (e.g. "
+                                        f"{key} = \"{_APERTURE_EXAMPLES[key]}\")")
+                bad = True
+            elif key not in needs and given:
+                self.fail(loc + (key,), f"a {ap.shape} aperture takes "
+                                        f"{' and '.join(needs)}, not {key}")
+                bad = True
+        if bad:
+            return
+        lam = C_LIGHT / f.frequency
+        if ap.shape == "rectangular":
+            reach = 0.5 * math.hypot(ap.width, ap.height)
+            if ap.width <= 0.5 * lam:
+                self.fail(loc + ("width",),
+                          f"a width of {ap.width * 1e3:.4g} mm is at or below λ/2 = "
+                          f"{0.5 * lam * 1e3:.4g} mm at {f.frequency / 1e9:.4g} GHz: the TE10 "
+                          "guide is cut off; expected a width above λ/2")
+            what, key = "half its diagonal", "width"
+        else:
+            reach = ap.radius
+            from rfcheck.physics.waveguide import circular_te_cutoff
+
+            f_c = float(circular_te_cutoff(ap.radius, 1, 1))
+            if f.frequency <= f_c:
+                self.fail(loc + ("radius",),
+                          f"a radius of {ap.radius * 1e3:.4g} mm puts the TE11 cutoff at "
+                          f"{f_c / 1e9:.4g} GHz, at or above the feed's "
+                          f"{f.frequency / 1e9:.4g} GHz: the guide is cut off; expected a "
+                          f"radius above {ap.radius * f_c / f.frequency * 1e3:.4g} mm")
+            what, key = "its radius", "radius"
+        from rfcheck.physics.aperture_pattern import MAX_WAVELENGTHS
+
+        across = max(ap.width, ap.height) if ap.shape == "rectangular" else 2 * ap.radius
+        if across > MAX_WAVELENGTHS * lam:
+            self.fail(loc + (key,),
+                      f"the aperture is {across / lam:.4g} wavelengths across at "
+                      f"{f.frequency / 1e9:.4g} GHz; expected at most {MAX_WAVELENGTHS} "
+                      f"({MAX_WAVELENGTHS * lam * 1e3:.5g} mm): a mouth that large radiates a "
+                      "beam (give it as beam = { waist = ... })")
+        if off + reach >= radius:
+            self.fail(loc + (key,),
+                      f"the aperture ({what} {reach * 1e3:.4g} mm, {off * 1e3:.4g} mm off the "
+                      f"axis) does not fit inside the chamber radius ({radius * 1e3:.4g} mm); "
+                      f"expected off-axis distance + {what} below it")
 
     def _window_place(self, w: WindowSpec, f: FeedSpec, i: int) -> None:
         """A window sits in its feed's line: at or behind the launcher, never in the plasma
@@ -1152,7 +1235,8 @@ class _CrossCheck:
                             f.launch.tilt or 0.0, f.launch.tilt_azimuth or 0.0,
                             (m.LaunchBeam(f.launch.beam.waist, f.launch.beam.waist_distance)
                              if f.launch.beam else None),
-                            _launch_target(f.launch.target, s.chamber)),
+                            _launch_target(f.launch.target, s.chamber),
+                            _aperture_model(f.launch.aperture)),
                    f.absorption, _cold_gamma(f.cold_cavity), f.ignition_time,
                    (m.ShortRating(f.max_reflected_power_short.power,
                                   f.max_reflected_power_short.duration)
@@ -1179,6 +1263,12 @@ class _CrossCheck:
             review=m.Review(s.review.prepared_by, s.review.checked_by, s.review.approved_by,
                             s.review.notes),
         )
+
+
+def _aperture_model(ap: LaunchApertureSpec | None):
+    if ap is None:
+        return None
+    return m.LaunchAperture(ap.shape, ap.width or 0.0, ap.height or 0.0, ap.radius or 0.0)
 
 
 def _launch_target(t: LaunchTargetSpec | None, chamber):

@@ -14,6 +14,11 @@ The study, per feed, at each envelope corner of peak density (min, max) × curre
   (49 rays) with their exact TEM00 power shares, started on the launcher plane normal to the
   phase front (:func:`rfcheck.physics.rays.trace_beam`); the 1/e² radius × 2 holds
   1 − e^−8 of the power and the rest (3.4e-4) is counted as not traced. Otherwise one ray.
+  An aperture (``launch.aperture``, a waveguide mouth or horn): the rays of
+  :func:`rfcheck.physics.aperture_pattern.aperture_rays` (from its centre over its main lobe,
+  each with its share of the radiated power; the side lobes are not traced), for each
+  orientation of E the spec leaves open (:func:`aperture_launch`), so the study holds the
+  corners of every orientation and each rule takes the worst.
   The branch is the feed's intended mode (the other parts of a linear launch are judged by
   the 1-D rules).
 * **Medium.** |B| from the magnet model sampled once on a spline grid over the chamber
@@ -52,6 +57,7 @@ from rfcheck.model import FieldMap, Feed
 from rfcheck.physics.absorption import optical_depth_o1, optical_depth_o2, optical_depth_x2
 from rfcheck.physics.constants import C, E_CHARGE, M_E
 from rfcheck.physics.frequencies import ecr_field
+from rfcheck.physics.aperture_pattern import aperture_rays
 from rfcheck.physics.rays import GridField, trace_rays
 from rfcheck.physics.rays import _beam_rays as beam_rays
 
@@ -61,6 +67,11 @@ from .resonance import ECR_HARMONIC
 
 #: beam sampling: rings of rays round the central one (1 + 3 × 16 = 49 rays)
 BEAM_RINGS, BEAM_PER_RING = 3, 16
+#: aperture sampling: rings of angular cells round the boresight cap (1 + 4 × 16 = 65 rays,
+#: fewer where the main lobe does not reach a cell)
+APERTURE_RINGS, APERTURE_PER_RING = 4, 16
+#: B within this relative projection of the boresight gives no reference for E
+ALONG_FIELD = 1e-3
 #: field grid: cells across the chamber radius and along its length
 GRID_XY, GRID_Z = 12, 30
 #: relative tolerance of the ray integration (Dormand–Prince 5(4) per ray): on the examples
@@ -139,6 +150,8 @@ class RayStudy:
     grid: GridField
     corners: list[RayCorner] = field(default_factory=list)
     label: str = ""
+    #: an aperture launch: how it is sampled and how E is oriented ("", "": a beam or one ray)
+    sampling: tuple[str, str] = ("", "")
 
     def worst(self, key, sense: str = "min") -> RayCorner:
         """The corner with the least (``"min"``) or largest value of `key`; corners within
@@ -152,12 +165,74 @@ class RayStudy:
     def assumptions(self) -> str:
         launch = self.feed.launch
         what = (f"a Gaussian beam of waist {launch.beam.waist * 1e3:.3g} mm sampled by "
-                f"{len(self.corners[0].rays)} rays" if launch.beam else "one ray")
+                f"{len(self.corners[0].rays)} rays" if launch.beam
+                else self.sampling[0] if self.sampling[0] else "one ray")
         return (f"{what} of the {self.mode} branch from {self.label}; cold plasma; n_e from "
                 f"the declared axial profile, uniform across the radius; |B| from the magnet "
                 f"model on a {'×'.join(str(n) for n in self.grid.shape)} spline grid; rays "
                 f"end at |B| = B_res (1 ± {LAYER_BAND:g}); integration rtol {RAY_RTOL:g}; "
-                "other parts of a linear launch: the 1-D rules")
+                "other parts of a linear launch: the 1-D rules"
+                + (f"; {self.sampling[1]}" if self.sampling[1] else ""))
+
+
+def aperture_launch(launch, f: float, origin: np.ndarray, direction: np.ndarray, b_nominal):
+    """Rays of an aperture launch (:func:`rfcheck.physics.aperture_pattern.aperture_rays`):
+    (starts, directions, shares, orientations, (sampling text, orientation text)).
+
+    The E direction: at ``e_angle_to_field`` from the projection of B (nominal currents, at
+    the launcher) on the aperture plane, both senses of the angle unless it is 0 or 90° (the
+    pattern is mirror symmetric, but which way the angle turns is not declared). Where no
+    angle is declared, the launch is circularly polarised, or B lies within ``ALONG_FIELD``
+    of the boresight (no projection to measure the angle from): two orientations, E along
+    the launcher's radial direction (x on the axis) and E across it. Each orientation's rays
+    follow the other's; the study keeps the corners of every orientation, so every rule
+    takes the worse."""
+    ap = launch.aperture
+    sizes = (dict(width=ap.width, height=ap.height) if ap.shape == "rectangular"
+             else dict(radius=ap.radius))
+    b = np.asarray(b_nominal(origin[None, :])[0], dtype=float)
+    b_perp = b - np.dot(b, direction) * direction
+    declared = launch.e_angle_to_field is not None and launch.polarisation in (None, "linear")
+    reference = float(np.linalg.norm(b_perp)) > ALONG_FIELD * float(np.linalg.norm(b))
+    if declared and reference:
+        e1 = b_perp / np.linalg.norm(b_perp)
+        e2 = np.cross(direction, e1)
+        alpha = launch.e_angle_to_field
+        signs = (1.0,) if min(alpha, abs(alpha - math.pi / 2)) < 1e-9 else (1.0, -1.0)
+        e_dirs = [math.cos(alpha) * e1 + sg * math.sin(alpha) * e2 for sg in signs]
+        how = (f"aperture E at {math.degrees(alpha):.3g}° to the projection of B on it"
+               + (" (both senses of the angle traced, each rule takes the worse)"
+                  if len(signs) > 1 else ""))
+    else:
+        radial = np.array([origin[0], origin[1], 0.0])
+        if np.linalg.norm(radial) <= 0:
+            radial = np.array([1.0, 0.0, 0.0])
+        e1 = radial - np.dot(radial, direction) * direction
+        if np.linalg.norm(e1) < 1e-6:
+            e1 = np.array([0.0, 1.0, 0.0]) - direction[1] * direction
+        e1 /= np.linalg.norm(e1)
+        e_dirs = [e1, np.cross(direction, e1)]
+        why = ("not fixed (a circular polarisation turns E)" if launch.polarisation
+               in ("circular-right", "circular-left") else
+               "not declared" if launch.e_angle_to_field is None else
+               "B at the launcher lies along the boresight, so e_angle_to_field fixes no "
+               "direction")
+        how = (f"aperture E direction {why}: E along the launcher's radial direction and E "
+               "across it both traced at every corner, each rule takes the worse (the worst "
+               "case)")
+    parts = [aperture_rays(f, origin, direction, ap.shape, e_direction=e, rings=APERTURE_RINGS,
+                           per_ring=APERTURE_PER_RING, **sizes) for e in e_dirs]
+    starts = np.vstack([p[0] for p in parts])
+    dirs = np.vstack([p[1] for p in parts])
+    shares = np.concatenate([p[2] for p in parts])
+    lobe = float(parts[0][2].sum())
+    reach = ("the main lobe fills the forward hemisphere" if lobe > 1.0 - 1e-6 else
+             f"{100 * lobe:.3g} % of the power radiated into the forward hemisphere; the side "
+             "lobes not traced")
+    text = (f"{ap.describe()} (uniform phase: a horn's flare phase error ignored) sampled by "
+            f"{len(parts[0][2])} rays from its centre over its main lobe (to the first nulls "
+            f"of its E- and H-planes: {reach})", how)
+    return starts, dirs, shares, len(parts), text
 
 
 def ray_grid(ctx) -> GridField:
@@ -249,10 +324,15 @@ def compute_ray_study(ctx, feed: Feed) -> RayStudy:
     label = (f"(x, y, z) = ({origin[0] * 1e3:.4g}, {origin[1] * 1e3:.4g}, "
              f"{origin[2] * 1e3:.4g}) mm, {math.degrees(launch.tilt):.3g}° from "
              f"{'+' if launch.direction > 0 else '-'}z")
+    orientations = 1
+    sampling = ("", "")
     if launch.beam:
         starts, dirs, weights = beam_rays(f, origin, direction, launch.beam.waist,
                                           waist_distance=launch.beam.waist_distance,
                                           rings=BEAM_RINGS, per_ring=BEAM_PER_RING)
+    elif launch.aperture is not None:
+        starts, dirs, weights, orientations, sampling = aperture_launch(
+            launch, f, origin, direction, scaled_field(grid, 1.0))
     else:
         starts, dirs, weights = origin[None, :], direction[None, :], np.ones(1)
     far, sign = (ch.z_end, 1.0) if launch.direction > 0 else (ch.z_start, -1.0)
@@ -262,7 +342,7 @@ def compute_ray_study(ctx, feed: Feed) -> RayStudy:
 
     t_e = float(np.min(env.electron_temperature))
     pressure = None if plasma.neutral is None else plasma.neutral.pressure.min
-    study = RayStudy(feed, launch.mode, h, b_res, grid, label=label)
+    study = RayStudy(feed, launch.mode, h, b_res, grid, label=label, sampling=sampling)
     densities = sorted({float(np.min(env.density)), float(np.max(env.density))})
     scales = sorted({float(np.min(env.current_scale)), float(np.max(env.current_scale))})
     corners = [(n_peak, scale) for n_peak in densities for scale in scales]
@@ -286,18 +366,26 @@ def compute_ray_study(ctx, feed: Feed) -> RayStudy:
 
     # every corner's bundle traced as one (each ray keeps its own steps: the same paths as
     # corner by corner, in a quarter of the calls)
-    k = len(starts)
-    rays = trace_rays(f, np.tile(starts, (len(corners), 1)), np.tile(dirs, (len(corners), 1)),
+    # (an aperture whose E direction is open: each orientation's rays after the other's, its
+    # corners after the other's; every rule then takes the worse)
+    k = len(starts) // orientations
+    tiles = [np.tile(a.reshape(orientations, k, -1), (1, len(corners), 1)).reshape(-1, 3)
+             for a in (starts, dirs)]
+    rays = trace_rays(f, tiles[0], tiles[1],
                       launch.mode, b_all, dens_all, max_length=LENGTH_FACTOR * ch.length,
                       ions=plasma.ions, collision_frequency=nus, inside=inside,
                       cyclotron_field=b_res, cyclotron_band=LAYER_BAND, rtol=RAY_RTOL,
-                      max_evaluations=RAY_BUDGET, groups=np.repeat(np.arange(len(corners)), k))
-    for i, (n_peak, scale) in enumerate(corners):
-        def dens(p, n_peak=n_peak):
-            return n_peak * profile_shape(plasma.profile, ch, p[:, 2])
+                      max_evaluations=RAY_BUDGET,
+                      groups=np.tile(np.repeat(np.arange(len(corners)), k), orientations))
+    for o in range(orientations):
+        w_o = weights[o * k:(o + 1) * k]
+        for i, (n_peak, scale) in enumerate(corners):
+            def dens(p, n_peak=n_peak):
+                return n_peak * profile_shape(plasma.profile, ch, p[:, 2])
 
-        study.corners.append(_corner(study, rays[i * k:(i + 1) * k], weights, n_peak, scale,
-                                     scaled_field(grid, scale), dens, t_e, ch, far, f))
+            j = o * len(corners) + i
+            study.corners.append(_corner(study, rays[j * k:(j + 1) * k], w_o, n_peak, scale,
+                                         scaled_field(grid, scale), dens, t_e, ch, far, f))
     target = launch.target
     if target is not None:
         r_t = ch.radius if target.radius is None else target.radius

@@ -57,12 +57,13 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from rfcheck.physics.aperture_pattern import aperture_rays
 from rfcheck.physics.coldplasma import n2_branch
 from rfcheck.physics.constants import C as C_LIGHT
 from rfcheck.physics.domain import check_index, guard_public
 
 __all__ = ["Ray", "Beam", "GridField", "trace_ray", "trace_rays", "trace_beam", "beam_samples",
-           "STOPS"]
+           "aperture_rays", "STOPS"]
 
 #: every reason a ray can end (see the module docstring)
 STOPS = ("max_length", "wall", "resonance", "absorbed", "returned", "evanescent_start",

@@ -150,6 +150,18 @@ BASE: dict[str, dict] = {
     "access.launch_path_access": dict(z=Z, b=B_PATH, n_e=N_PATH, f=F, mode="R"),
     "access.path_landmarks": dict(z=Z, b=B_PATH, n_e=N_PATH, f=F),
     "access.mode_n2": dict(f=F, b=B_PATH, n_e=N_PATH, mode="R"),
+    "aperture_pattern.te10_h_plane": dict(x=np.array([0.0, 1.0, np.pi / 2, 4.0])),
+    "aperture_pattern.te11_h_plane": dict(z=np.array([0.0, 1.0, 1.8411837813, 6.0])),
+    "aperture_pattern.aperture_power_pattern": dict(
+        frequency=F, theta=np.array([0.0, 0.3, 1.2]), phi=np.array([0.0, 0.7, 1.5]),
+        shape="rectangular", width=0.09, height=0.045),
+    "aperture_pattern.aperture_main_lobe": dict(
+        frequency=F, theta=np.array([0.0, 0.3, 1.2]), phi=np.array([0.0, 0.7, 1.5]),
+        shape="circular", radius=0.05),
+    "aperture_pattern.aperture_radiated_power": dict(frequency=F, shape="circular", radius=0.05),
+    "aperture_pattern.aperture_rays": dict(frequency=F, centre=(0.0, 0.0, 0.0),
+                                           direction=(0.0, 0.0, 1.0), shape="rectangular",
+                                           width=0.09, height=0.045, rings=2, per_ring=8),
     "apertures.tube_cutoff": dict(shape="circular", diameter=0.01),
     "apertures.tube_attenuation_db": dict(shape="circular", depth=0.05, f=F, diameter=0.01),
     "apertures.array_attenuation_db": dict(single_db=60.0, count=10),
