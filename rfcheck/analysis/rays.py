@@ -121,6 +121,7 @@ class RayCorner:
     go_max: np.ndarray = field(default_factory=lambda: np.zeros(0))
     go_at: np.ndarray = field(default_factory=lambda: np.zeros((0, 3)))
     go_band: float = 0.0              # relative half-width of |B| round B_res left out
+    orientation: str = ""             # the aperture's E orientation ("" where only one)
 
     def window_split(self, radius: float | None) -> tuple[float, float]:
         """(on the window, on the end wall): the returned share ("launcher") split by the
@@ -377,6 +378,9 @@ def compute_ray_study(ctx, feed: Feed) -> RayStudy:
                       cyclotron_field=b_res, cyclotron_band=LAYER_BAND, rtol=RAY_RTOL,
                       max_evaluations=RAY_BUDGET,
                       groups=np.tile(np.repeat(np.arange(len(corners)), k), orientations))
+    names = ([""] if orientations == 1 else
+             ["E radial", "E across"] if "radial direction" in sampling[1] else
+             ["E at +angle", "E at −angle"])
     for o in range(orientations):
         w_o = weights[o * k:(o + 1) * k]
         for i, (n_peak, scale) in enumerate(corners):
@@ -386,6 +390,7 @@ def compute_ray_study(ctx, feed: Feed) -> RayStudy:
             j = o * len(corners) + i
             study.corners.append(_corner(study, rays[j * k:(j + 1) * k], w_o, n_peak, scale,
                                          scaled_field(grid, scale), dens, t_e, ch, far, f))
+            study.corners[-1].orientation = names[o]
     target = launch.target
     if target is not None:
         r_t = ch.radius if target.radius is None else target.radius

@@ -16,6 +16,8 @@ MAP_R, MAP_Z = 61, 121
 #: bins of the deposition profile along the chamber
 PROFILE_BINS = 40
 _CORNER_COLOURS = ("#1f3f73", "#c44e52", "#55a868", "#8172b3")
+#: the corners of a second aperture E orientation (corners 5–8): other markers and dashes
+_MARKS, _STYLES = ("o", "s"), ("-", "--")
 
 
 def _plane_angle(launch) -> float:
@@ -33,7 +35,8 @@ def _in_plane(points: np.ndarray, phi: float) -> np.ndarray:
 
 
 def _corner_text(c) -> str:
-    return f"n_peak {c.density:.3g} m^-3, current ×{c.scale:.4g}"
+    return (f"n_peak {c.density:.3g} m^-3, current ×{c.scale:.4g}"
+            + (f", {c.orientation}" if c.orientation else ""))
 
 
 def _map_figure(run, study) -> dict:
@@ -129,8 +132,8 @@ def _section_figure(run, study) -> dict | None:
     for i, c in enumerate(study.corners):
         e = np.array([r.end for r, end in zip(c.rays, c.ends) if end == "layer"]).reshape(-1, 3)
         if e.size:
-            drawn.tag(ax.plot(e[:, 0] * 1e3, e[:, 1] * 1e3, "o", ms=2.2,
-                              color=_CORNER_COLOURS[i % len(_CORNER_COLOURS)],
+            drawn.tag(ax.plot(e[:, 0] * 1e3, e[:, 1] * 1e3, _MARKS[i // 4 % len(_MARKS)],
+                              ms=2.2, color=_CORNER_COLOURS[i % len(_CORNER_COLOURS)],
                               label=_corner_text(c))[0], "layer-point")
     t = np.linspace(0, 2 * math.pi, 181)
     drawn.tag(ax.plot(ch.radius * 1e3 * np.cos(t), ch.radius * 1e3 * np.sin(t), color="0.3",
@@ -169,6 +172,7 @@ def _profile_figure(run, study) -> dict:
         hist = (np.histogram(d[:, 2], bins=edges, weights=d[:, 3])[0] if d.size
                 else np.zeros(PROFILE_BINS))
         drawn.tag(ax.step(edges[:-1] * 1e3, hist / (width * 1e3), where="post", lw=1.1,
+                          ls=_STYLES[i // 4 % len(_STYLES)],
                           color=_CORNER_COLOURS[i % len(_CORNER_COLOURS)],
                           label=_corner_text(c))[0], "corner")
     target = feed.launch.target

@@ -133,3 +133,17 @@ def test_an_e_angle_without_a_projection_of_b_takes_both_orientations():
                                                  launch.wave_direction, _uniform_b)
     assert orientations == 2
     assert "fixes no direction" in how and "each rule takes the worse" in how
+
+
+def test_the_ray_figures_name_each_orientation_of_an_open_e_apart(aperture_run):
+    # two E orientations × four envelope corners: every corner labelled once in the legends
+    from rfcheck.report.figure_rays import ray_figures
+
+    study = ray_study(aperture_run.context, aperture_run.model.feeds[0])
+    labels = [c.orientation for c in study.corners]
+    assert labels == ["E radial"] * 4 + ["E across"] * 4
+    figs = {f["id"].rsplit("-", 1)[0]: f for f in ray_figures(aperture_run)}
+    profile = figs["rays-deposition"]["svg"]
+    for c in study.corners:
+        text = (f"n_peak {c.density:.3g} m^-3, current ×{c.scale:.4g}, {c.orientation}")
+        assert profile.count(text) == 1, text
