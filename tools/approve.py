@@ -32,6 +32,7 @@ CASES = (
     ("dual-frequency-min-b.toml", None),
     ("helicon-source.toml", None),
     ("oblique-beam-reactor.toml", None),
+    ("oblique-beam-reactor.toml", "min-b-site-policy.toml"),  # the same source's site policy
 )
 
 

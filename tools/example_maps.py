@@ -37,8 +37,9 @@ MAPS = {
                                ("plasma.neutral.pressure.max", "2 Pa", "8 Pa")]),
     "pm-ecr-thruster": (None, [("magnet.rings[rear-ring].remanence", "1.0 T", "1.4 T"),
                                ("feed[antenna].frequency", "2.40 GHz", "2.50 GHz")]),
-    "oblique-beam-reactor": (None, [("magnet.coils[injection].current", "320 A", "380 A"),
-                                    ("feed[klystron].frequency", "14.3 GHz", "14.7 GHz")]),
+    "oblique-beam-reactor": ("min-b-site-policy", [
+        ("magnet.coils[injection].current", "320 A", "380 A"),
+        ("feed[klystron].frequency", "14.3 GHz", "14.7 GHz")]),
     "starter": (None, [("magnet.coils[c1].current", "50 A", "80 A"),
                        ("feed[main].frequency", "2.40 GHz", "2.50 GHz")]),
 }
