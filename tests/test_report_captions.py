@@ -120,3 +120,22 @@ def test_log_tick_labels_are_plain_text(value, text):
     from rfcheck.report.figures import power_label
 
     assert power_label(value) == text
+
+
+#: the colour-blind-safe set of M. Okabe and K. Ito, "Color Universal Design" (2008), as
+#: recommended by B. Wong, Nature Methods 8, 441 (2011): every coloured line of a figure
+OKABE_ITO = {"#000000", "#e69f00", "#56b4e9", "#009e73", "#f0e442", "#0072b2", "#d55e00",
+             "#cc79a7"}
+
+
+@pytest.mark.parametrize("path", SPECS, ids=lambda p: p.stem)
+def test_every_coloured_line_is_from_the_colour_blind_safe_set(path):
+    from rfcheck.report.glance import glance
+
+    result, figs = _figs(path)
+    g = glance(result)["figure"]
+    for fig in [*figs, *([g] if g else [])]:
+        for c in re.findall(r"stroke: ?(#[0-9a-fA-F]{6})", fig["svg"]):
+            c = c.lower()
+            grey = c[1:3] == c[3:5] == c[5:7]
+            assert grey or c in OKABE_ITO, (fig["id"], c)

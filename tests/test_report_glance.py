@@ -54,7 +54,7 @@ def test_caption_promises_exactly_what_is_drawn(path):
     assert len(_ids(svg, "magnet")) == 2 * len(permanent)
     assert ("permanent magnets (grey)" in caption) == bool(permanent)
     assert len(_ids(svg, "window")) == len(windows)
-    assert ("windows (teal bars" in caption) == bool(windows)
+    assert ("windows (bluish-green bars" in caption) == bool(windows)
     assert len(_ids(svg, "launcher")) == len(feeds)
     assert len(_ids(svg, "landmark")) == len(landmarks)
     assert ("landmarks (ticks" in caption) == bool(landmarks)

@@ -17,8 +17,8 @@ from rfcheck.report.figures import _mpl, _short, _svg, plain_log_ticks
 from rfcheck.units import format_si
 
 #: branch colours and line styles (distinct in greyscale print too)
-BRANCHES = (("R", "R wave along B", "#c44e52", "-"), ("L", "L wave along B", "#4c72b0", "--"),
-            ("O", "O wave across B", "#55a868", "-."))
+BRANCHES = (("R", "R wave along B", "#d55e00", "-"), ("L", "L wave along B", "#56b4e9", "--"),
+            ("O", "O wave across B", "#009e73", "-."))
 #: frequency samples per panel
 SAMPLES = 600
 
@@ -81,8 +81,8 @@ def dispersion_figure(run) -> dict | None:
         k_max = 1.6 * TWO_PI * max(feed.frequency, f_pe) / C
         ax.plot(k_line, f / 1e9, color="0.4", lw=0.8, ls=":", label="light line f = ck/2π")
         lo, hi = feed.frequency - feed.frequency_tolerance, feed.frequency + feed.frequency_tolerance
-        ax.axhspan(lo / 1e9, hi / 1e9, color="#dd8452", alpha=0.35, lw=0)
-        ax.axhline(feed.frequency / 1e9, color="#dd8452", lw=1.2, label="feed frequency ± tolerance")
+        ax.axhspan(lo / 1e9, hi / 1e9, color="#e69f00", alpha=0.35, lw=0)
+        ax.axhline(feed.frequency / 1e9, color="#e69f00", lw=1.2, label="feed frequency ± tolerance")
         levels = [("f_pe", f_pe)]
         if b > 0:
             x = (f_pe / f_ce) ** 2 if f_ce > 0 else np.inf

@@ -16,7 +16,7 @@ from rfcheck.report.figures import Drawn, _mpl, _svg, sentence
 #: grid of the map (axial x radial samples)
 GRID_Z = 64
 GRID_R = 48
-_LINE_COLOURS = ("#c44e52", "#dd8452")
+_LINE_COLOURS = ("#d55e00", "#e69f00")
 
 
 def _levels(run) -> list[tuple[str, float, dict]]:

@@ -19,7 +19,7 @@ MAP_R = 41
 MAP_Z = 161
 #: filled-contour levels of |B| (vector paths keep the SVG small and reproducible)
 MAP_LEVELS = 24
-_COLOURS = ("#c44e52", "#dd8452", "#8172b3", "#55a868")
+_COLOURS = ("#d55e00", "#e69f00", "#cc79a7", "#009e73")
 
 
 def _half_planes(ctx, model):

@@ -12,7 +12,7 @@ import numpy as np
 from rfcheck.report.figures import Drawn, _mpl, _short, _svg, plain_log_ticks, sentence
 
 
-_COLOURS = ["#1f3f73", "#55a868", "#8172b3", "#dd8452", "#937860"]
+_COLOURS = ["#0072b2", "#009e73", "#cc79a7", "#e69f00", "#000000"]
 
 
 def _paths(run) -> dict:
@@ -51,11 +51,11 @@ def launch_path_figure(run) -> dict | None:
                               alpha=float(shades[n]), lw=0.9, label=label)[0], "corner")
         ax.axhline(0.0, color="0.3", lw=0.8)
         for i, zz in enumerate(_positions(p["corners"], "target_z")):
-            drawn.tag(ax.axvline(zz * 1e3, color="#c44e52", lw=0.9, ls="--",
+            drawn.tag(ax.axvline(zz * 1e3, color="#d55e00", lw=0.9, ls="--",
                                  label=f"{p['corners'][0]['target']} (target)" if i == 0
                                  else None), "target")
         for i, zz in enumerate(_positions(p["corners"], "first_cutoff_z")):
-            drawn.tag(ax.axvline(zz * 1e3, color="#4c72b0", lw=0.9, ls=":",
+            drawn.tag(ax.axvline(zz * 1e3, color="#56b4e9", lw=0.9, ls=":",
                                  label="first cutoff" if i == 0 else None), "cutoff")
         ax.set_yscale("symlog", linthresh=1.0)
         plain_log_ticks(ax, "y")
@@ -105,7 +105,7 @@ def cma_figure(run) -> dict | None:
     for (cx, cy, label, ls), name in zip(curves, ("p-cutoff", "r-cutoff", "l-cutoff",
                                                     "upper-hybrid")):
         drawn.tag(ax.plot(cx, cy, color="0.25", lw=1.0, ls=ls, label=label)[0], name)
-    drawn.tag(ax.axhline(1.0, color="#c44e52", lw=1.0, label="Y = 1 (ECR)"), "ecr")
+    drawn.tag(ax.axhline(1.0, color="#d55e00", lw=1.0, label="Y = 1 (ECR)"), "ecr")
     for i, (fid, p) in enumerate(paths.items()):
         colour = _COLOURS[1 + i % (len(_COLOURS) - 1)]
         for j, c in enumerate(p["corners"]):

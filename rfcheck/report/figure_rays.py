@@ -15,7 +15,7 @@ from rfcheck.report.figures import Drawn, _mpl, _short, _svg
 MAP_R, MAP_Z = 61, 121
 #: bins of the deposition profile along the chamber
 PROFILE_BINS = 40
-_CORNER_COLOURS = ("#1f3f73", "#c44e52", "#55a868", "#8172b3")
+_CORNER_COLOURS = ("#0072b2", "#d55e00", "#009e73", "#cc79a7")
 #: the corners of a second aperture E orientation (corners 5–8): other markers and dashes
 _MARKS, _STYLES = ("o", "s"), ("-", "--")
 
@@ -62,22 +62,22 @@ def _map_figure(run, study) -> dict:
     cs = ax.contourf(z * 1e3, r * 1e3, bmag * 1e3, levels=20, cmap="Greys", alpha=0.55)
     fig.colorbar(cs, ax=ax, label="|B| (mT)", shrink=0.85)
     if np.nanmin(bmag) < study.b_res < np.nanmax(bmag):
-        drawn.tag(ax.contour(z * 1e3, r * 1e3, bmag, levels=[study.b_res], colors="#c44e52",
+        drawn.tag(ax.contour(z * 1e3, r * 1e3, bmag, levels=[study.b_res], colors="#d55e00",
                              linewidths=1.4), "layer")
     cut = {"R": (x - (1 - y), "R cutoff X = 1 − Y"), "X": (x - (1 - y), "R cutoff X = 1 − Y"),
            "O": (x - 1.0, "O cutoff X = 1"), "L": (x - (1 + y), "L cutoff X = 1 + Y")}
     g, cut_name = cut[study.mode]
     if np.nanmin(g) < 0 < np.nanmax(g):
-        drawn.tag(ax.contour(z * 1e3, r * 1e3, g, levels=[0.0], colors="#dd8452",
+        drawn.tag(ax.contour(z * 1e3, r * 1e3, g, levels=[0.0], colors="#e69f00",
                              linewidths=1.2, linestyles="--"), "cutoff")
     for ray in corner.rays:
         drawn.tag(ax.plot(ray.path[:, 2] * 1e3, _in_plane(ray.path, phi) * 1e3,
-                          color="#1f3f73", lw=0.6, alpha=0.8)[0], "ray")
+                          color="#0072b2", lw=0.6, alpha=0.8)[0], "ray")
     ends = [ray.end for ray, e in zip(corner.rays, corner.ends) if e == "layer"]
     if ends:
         e = np.array(ends)
         drawn.tag(ax.plot(e[:, 2] * 1e3, _in_plane(e, phi) * 1e3, "o", ms=2.5,
-                          color="#c44e52", zorder=5)[0], "layer-point")
+                          color="#d55e00", zorder=5)[0], "layer-point")
     ax.set_xlabel("z (mm)")
     ax.set_ylabel(f"transverse position at {math.degrees(phi):.3g}° (mm)")
     ax.set_xlim(ch.z_start * 1e3, ch.z_end * 1e3)
@@ -127,7 +127,7 @@ def _section_figure(run, study) -> dict | None:
     cs = ax.contourf(u * 1e3, u * 1e3, bmag.T * 1e3, levels=20, cmap="Greys", alpha=0.55)
     fig.colorbar(cs, ax=ax, label="|B| (mT)", shrink=0.85)
     if np.nanmin(bmag) < study.b_res < np.nanmax(bmag):
-        drawn.tag(ax.contour(u * 1e3, u * 1e3, bmag.T, levels=[study.b_res], colors="#c44e52",
+        drawn.tag(ax.contour(u * 1e3, u * 1e3, bmag.T, levels=[study.b_res], colors="#d55e00",
                              linewidths=1.4), "layer")
     for i, c in enumerate(study.corners):
         e = np.array([r.end for r, end in zip(c.rays, c.ends) if end == "layer"]).reshape(-1, 3)
@@ -177,7 +177,7 @@ def _profile_figure(run, study) -> dict:
                           label=_corner_text(c))[0], "corner")
     target = feed.launch.target
     if target is not None:
-        drawn.tag(ax.axvspan(target.z_start * 1e3, target.z_end * 1e3, color="#55a868",
+        drawn.tag(ax.axvspan(target.z_start * 1e3, target.z_end * 1e3, color="#009e73",
                              alpha=0.15, lw=0, label=f"target ({target.label})"), "target")
     ax.set_xlabel("z (mm)")
     ax.set_ylabel("deposited power (fraction / mm)")

@@ -59,24 +59,24 @@ def window_figure(run) -> dict | None:
         with np.errstate(invalid="ignore"):
             if g.shape[0] > 1 and np.isfinite(g).any():
                 drawn.tag(ax.fill_between(fg, np.nanmin(g, axis=0), np.nanmax(g, axis=0),
-                                          color="#4c72b0", alpha=0.25, lw=0,
+                                          color="#56b4e9", alpha=0.25, lw=0,
                                           label="worst combinations found"), "worst-band")
         if np.isfinite(g[a.nominal]).any():
-            drawn.tag(ax.plot(fg, g[a.nominal], color="#1f3f73", lw=1.5,
+            drawn.tag(ax.plot(fg, g[a.nominal], color="#0072b2", lw=1.5,
                               label="nominal stack")[0], "nominal")
         lo, hi = feed.frequency - feed.frequency_tolerance, feed.frequency + feed.frequency_tolerance
         if hi > lo:
-            drawn.tag(ax.axvspan(lo / 1e9, hi / 1e9, color="#dd8452", alpha=0.25, lw=0,
+            drawn.tag(ax.axvspan(lo / 1e9, hi / 1e9, color="#e69f00", alpha=0.25, lw=0,
                                  label=f"feed {_short(feed.id)}: f ± tolerance"), "tolerance")
         else:
-            drawn.tag(ax.axvline(feed.frequency / 1e9, color="#dd8452", lw=1.2,
+            drawn.tag(ax.axvline(feed.frequency / 1e9, color="#e69f00", lw=1.2,
                                  label=f"feed {_short(feed.id)}"), "frequency")
         if limit is not None:
-            drawn.tag(ax.axhline(limit, color="#c44e52", lw=1.0, ls="--",
+            drawn.tag(ax.axhline(limit, color="#d55e00", lw=1.0, ls="--",
                                  label=f"limit |Γ| = {limit:.3g}"), "limit")
         worst, wf, _ = a.worst_gamma
         if math.isfinite(worst):
-            drawn.tag(ax.plot([wf / 1e9], [worst], "o", ms=4, color="#c44e52")[0], "worst")
+            drawn.tag(ax.plot([wf / 1e9], [worst], "o", ms=4, color="#d55e00")[0], "worst")
         stack = " + ".join(f"{la.thickness * 1e3:.4g} mm {la.material}" for la in a.window.layers)
         ax.set_title(f"window {_short(a.window.id)}: {stack} in {a.line.name}", fontsize=8.5)
         ax.set_xlabel("frequency (GHz)")

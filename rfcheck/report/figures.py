@@ -147,13 +147,13 @@ def axis_field_figure(run) -> dict | None:
     zm = z * 1e3
     mid = b.shape[0] // 2
     if b.shape[0] > 1:
-        drawn.tag(ax.fill_between(zm, b.min(axis=0) * 1e3, b.max(axis=0) * 1e3, color="#4c72b0",
+        drawn.tag(ax.fill_between(zm, b.min(axis=0) * 1e3, b.max(axis=0) * 1e3, color="#56b4e9",
                                   alpha=0.25, lw=0,
                                   label=f"current ±{model.magnet.current_tolerance:.1%}"),
                   "current-band")
-    drawn.tag(ax.plot(zm, b[mid] * 1e3, color="#1f3f73", lw=1.6, label="|B| on axis, nominal")[0],
+    drawn.tag(ax.plot(zm, b[mid] * 1e3, color="#0072b2", lw=1.6, label="|B| on axis, nominal")[0],
               "nominal")
-    colours = ["#c44e52", "#dd8452", "#8172b3", "#55a868"]
+    colours = ["#d55e00", "#e69f00", "#cc79a7", "#009e73"]
     for i, feed in enumerate(model.feeds):
         h = ECR_HARMONIC.get(feed.absorption)
         if h is None:

@@ -17,11 +17,11 @@ from rfcheck.units import format_si
 
 #: colours of the feeds (the palette of the other figures: colour-blind-safe, and each
 #: feed also gets its own line style so that a greyscale print keeps them apart)
-FEED_COLOURS = ("#c44e52", "#4c72b0", "#8172b3", "#55a868")
+FEED_COLOURS = ("#d55e00", "#56b4e9", "#cc79a7", "#009e73")
 FEED_STYLES = ("-", "--", "-.", ":")
-COIL = "#dd8452"
-MAGNET = "#6b7b8c"
-WINDOW = "#00838f"
+COIL = "#e69f00"
+MAGNET = "#7f7f7f"
+WINDOW = "#009e73"
 CHAMBER = "#333333"
 
 
@@ -274,7 +274,7 @@ def cross_section(run) -> dict | None:
                                    facecolor=WINDOW, edgecolor=WINDOW, alpha=0.6, lw=0.8,
                                    gid=f"el-window-{model.windows.index(w)}"))
     if model.windows:
-        drawn.append("windows (teal bars, their thickness to scale)")
+        drawn.append("windows (bluish-green bars, their thickness to scale)")
     for i, f in enumerate(model.feeds):
         colour = FEED_COLOURS[i % len(FEED_COLOURS)]
         ax.plot([f.launch.z * mm], [0.0], marker=">" if f.launch.direction > 0 else "<",
