@@ -18,9 +18,22 @@ Derivatives: ∂H/∂N and ∂H/∂r by central differences (n² is a closed for
 core, smooth away from cutoffs and resonances); one call of ``b_field`` and of ``density`` per
 right-hand side evaluation, on the 7 points r, r ± h e_i.
 
-Power: with a collision frequency ν, the remaining power fraction obeys dP/ds = −α P with
-α = 2 (ω/c) Im√(n²_ν) |N̂·ŝ| (weak damping: the imaginary part of k along the ray direction
-ŝ; Stix 1992 ch. 4, Swanson 2003 ch. 5), n²_ν the same branch with collisions.
+Power: with a collision frequency ν, the remaining power fraction P obeys, in the ray
+parameter,
+
+    d ln P/dτ = −2 k0 Im n²_ν · |N̂·∂H/∂N| / (2|N|) = −2 k0 Im n²_ν,     k0 = ω/c,
+
+n²_ν the same branch with ω → ω + iν, evaluated at the ray's own real N (weak damping: the
+correction iN_i that keeps H = 0 has N_i·∂H/∂N = Im n²_ν, and P falls as exp(−2 k0 ∫ N_i·dr)
+with dr = ∂H/∂N dτ; in arc length Im N ≈ Im n²_ν/(2|N|) along ds = |∂H/∂N| dτ; Stix 1992
+ch. 4, Bornatici et al., Nucl. Fusion 23 (1983) 1153, from memory). It is 2 k0 Im H_ν with
+H_ν = N·N − n²_ν; |Im n²_ν| is taken (≥ 0 for a passive medium with ω → ω + iν: power
+never grows along a ray). The factor |N̂·∂H/∂N|/(2|N|) is 1 identically, since n² depends
+on the direction of N only (Euler: N·∂n²/∂N = 0), and is taken as 1 rather than from the
+central differences, which lose it where |N| is as small as their step. The rate is finite where
+N → 0 at a turning point and linear in ν; it agrees with 2 k0 Im√n²_ν along the ray to
+O((ν/ω)²) where Re n² is not small, and unlike that root it does not grow as √(Im n²_ν)
+where Re n² → 0 (or turns slightly negative after a step past a turning point).
 
 Where the ray ends (``stop``):
 
@@ -328,9 +341,9 @@ def trace_ray(frequency: float, start, direction, mode: str,
         if lossy and speed > 0:
             n2c = complex(np.asarray(n2(b0[None, :], np.array([ne0]), nvec[None, :], nu)
                                      ).reshape(-1)[0])
-            k_i = omega_c * abs(np.sqrt(n2c).imag)
-            nhat = nvec / max(float(np.linalg.norm(nvec)), 1e-300)
-            dlnp = -2.0 * k_i * abs(float(nhat @ dh_dn))
+            # weak damping in τ at the ray's own real N (module docstring, "Power"):
+            # d ln P/dτ = −2 k0 Im n²_ν, finite at a turning point and linear in ν
+            dlnp = -2.0 * omega_c * abs(n2c.imag)
         return np.concatenate([dh_dn, -dh_dr, [dlnp, speed]])
 
     # the wave vector at the start: on the branch's dispersion surface
@@ -599,10 +612,9 @@ def trace_rays(frequency: float, starts, directions, mode: str, b_field, density
         if nu > 0:
             nu_r = nu_of(rays)
             n2c = np.asarray(n2(b[:, 0], n_e[:, 0], nv, nu_r))
-            k_i = omega_c * np.abs(np.sqrt(n2c.astype(complex)).imag)
-            nhat = nv / np.maximum(np.linalg.norm(nv, axis=1), 1e-300)[:, None]
-            dy[:, 6] = np.where(nu_r > 0, -2.0 * k_i * np.abs(np.einsum("ij,ij->i", nhat,
-                                                                         dh_dn)), 0.0)
+            # weak damping in τ at the ray's own real N (module docstring, "Power"):
+            # d ln P/dτ = −2 k0 Im n²_ν, finite at a turning point and linear in ν
+            dy[:, 6] = np.where(nu_r > 0, -2.0 * omega_c * np.abs(np.imag(n2c)), 0.0)
         return dy, np.linalg.norm(b[:, 0], axis=1), good
 
     y0 = np.concatenate([r0, nvec0, np.zeros((k_rays, 2))], axis=1)
