@@ -272,13 +272,9 @@ def _mm(x: float) -> str:
 
 
 def _skip_traced(ctx: Context, feed: Feed, requirement: str) -> tuple[bool, Finding | None]:
-    """(skip, finding) for the two readings of the study added after the first four rules: a
-    feed whose launch is not traced gets no finding from them (the four rays.* findings of
-    that feed already say why no ray is traced and which 1-D results cover it, and the
-    approved results of the on-axis examples stay as they were); a traced feed the rays do
-    not judge gets the not-applicable finding of :func:`_skip`."""
-    if not traced(feed):
-        return True, None
+    """(skip, finding): every feed the rays do not judge (an on-axis launch, near-field
+    coupling, another absorption) gets the not-applicable finding of :func:`_skip`, as from
+    the other rays.* rules, so that each rays.* rule says the same of a feed."""
     skipped = _skip(ctx, feed, requirement)
     return skipped is not None, skipped
 
@@ -289,7 +285,7 @@ def _skip_traced(ctx: Context, feed: Feed, requirement: str) -> tuple[bool, Find
       options={"max_window_fraction": _ratio("largest fraction of the forward power that may "
                                              "return onto the window when it declares no "
                                              "max_absorbed_power")},
-      applies=_APPLIES + " (no finding for other launches)")
+      applies=_APPLIES)
 def window_return(ctx: Context, *, max_window_fraction: float) -> Iterator[Finding]:
     """What it checks
     Where the rays that come back through the launcher plane cross it. Those within the
@@ -402,7 +398,7 @@ AXIS_FIELD = 0.02
                                "1", low_open=True)),
                "max_doubtful_share": _ratio("largest share of the launched power on rays "
                                             "that exceed it")},
-      applies=_APPLIES + " (no finding for other launches)")
+      applies=_APPLIES)
 def geometric_optics(ctx: Context, *, max_go_parameter: float,
                      max_doubtful_share: float) -> Iterator[Finding]:
     """What it checks
