@@ -141,6 +141,10 @@ class RayCorner:
         """Mask of the rays on which 1/(kL) exceeds `limit` before their end."""
         return self.go_max > limit
 
+    def go_unread(self) -> float:
+        """Share of the launched power on rays with no point to read 1/(kL) at."""
+        return float(np.sum(self.weights[np.isnan(self.go_max)]))
+
 
 @dataclass
 class RayStudy:
@@ -455,7 +459,9 @@ def resonance_band(t_e: float) -> float:
 
 
 def _go_reading(study, ray, b, band: float) -> tuple[float, np.ndarray]:
-    """The largest 1/(kL) on `ray` before its end outside the resonance band, and where."""
+    """The largest 1/(kL) on `ray` before its end outside the resonance band, and where;
+    NaN where the ray has no such point (evanescent at the start, or ended at once): nothing
+    was read, which is not the same as a ray in the geometric-optics regime."""
     go = np.asarray(ray.go_parameter, dtype=float)
     keep = np.ones(go.shape, bool)
     keep[-1] = False  # the end point: the stop itself (the layer, a wall, the plane)
@@ -463,7 +469,7 @@ def _go_reading(study, ray, b, band: float) -> tuple[float, np.ndarray]:
         y = np.linalg.norm(b(ray.path), axis=1) / study.b_res - 1.0
         keep &= np.abs(y) > band
     if not np.any(keep):
-        return 0.0, ray.path[0].copy()
+        return math.nan, ray.path[0].copy()
     i = int(np.flatnonzero(keep)[np.argmax(go[keep])])
     return float(go[i]), ray.path[i].copy()
 

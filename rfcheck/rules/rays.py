@@ -441,6 +441,14 @@ def geometric_optics(ctx: Context, *, max_go_parameter: float,
             yield from ([skipped] if skipped else [])
             continue
         study = ray_study(ctx, feed)
+        if all(k.go_unread() >= float(np.sum(k.weights)) for k in study.corners):
+            # nothing was read: no pass from rays that never left the launcher
+            yield ctx.not_applicable(
+                f"feed {feed.id}", req,
+                "no ray has a point to read 1/(kL) at (every ray is evanescent at the start or "
+                "ends at once, at every corner): there is no path to judge; "
+                "rays.reaches-resonance judges where the power goes")
+            continue
 
         def share(k):
             return float(np.sum(k.weights[k.go_failing(max_go_parameter)]))
@@ -448,15 +456,19 @@ def geometric_optics(ctx: Context, *, max_go_parameter: float,
         c = study.worst(share, "max")
         doubtful = share(c)
         fail = c.go_failing(max_go_parameter)
-        i = int(np.argmax(c.go_max)) if c.go_max.size else 0
-        top = float(c.go_max[i]) if c.go_max.size else 0.0
-        at = c.go_at[i] if c.go_max.size else np.zeros(3)
+        read = ~np.isnan(c.go_max)
+        i = int(np.flatnonzero(read)[np.argmax(c.go_max[read])]) if read.any() else 0
+        top = float(c.go_max[i]) if read.any() else 0.0
+        at = c.go_at[i] if read.any() else np.zeros(3)
         value = (f"{top:.3g}" if top <= 1e3 else
                  "above 1e3 (n → 0: a cutoff met at normal incidence)")
         where = (f"largest 1/(kL) {value} at z = {_mm(float(at[2]))}, r = "
                  f"{_mm(float(np.hypot(at[0], at[1])))}")
         band = (f"points within |B/B_res − 1| ≤ {c.go_band:.2g} of the layer (the Doppler "
                 "width at the lowest T_e) left out")
+        if c.go_unread() > 0:
+            band += (f"; {_frac(c.go_unread())} of the launched power on rays with no point "
+                     "to read (evanescent at the start or ended at once) is not judged here")
         passed = doubtful <= max_doubtful_share
         if passed:
             tail = "the ray results stand"

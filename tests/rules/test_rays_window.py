@@ -260,3 +260,20 @@ def test_a_rated_window_allows_what_its_rating_leaves_after_the_forward_pass(wri
     assert f.limit.value == pytest.approx((40.0 - p_abs) / a, rel=1e-9)
     assert f.status.value == ("pass" if f.measured.value <= f.limit.value else "fail")
     assert "max_absorbed_power 40 W" in f.message
+
+
+def test_rays_that_never_leave_the_launcher_give_no_geometric_optics_pass(write_spec,
+                                                                         demo_text):
+    # a uniform plasma at X = 2 from the launcher on (n_peak = 2 n_c with n_c the X = 1
+    # cutoff density, Stix ch. 1): the R wave (cutoff X = 1 − Y, Y = 0.002) is evanescent at
+    # the start, no ray moves, and there is no 1/(kL) to read: not a pass
+    text = _layer(demo_text, 0.15, BEAM).replace(
+        'points = [["0 mm", 0.0], ["300 mm", 1.0]]', 'points = [["0 mm", 1.0], ["300 mm", 1.0]]')
+    r, found = _run(write_spec, text)
+    study = ray_study(r.context, r.model.feeds[0])
+    assert all(ray.stop == "evanescent_start" for k in study.corners for ray in k.rays)
+    go = found[("rays.geometric-optics", "feed main")]
+    assert go.status.value == "not-applicable"
+    assert "no ray has a point to read" in go.message
+    reach = next(f for f in r.findings if f.rule == "rays.reaches-resonance")
+    assert reach.status.value == "fail"
