@@ -182,7 +182,8 @@ class RayStudy:
 
 def aperture_launch(launch, f: float, origin: np.ndarray, direction: np.ndarray, b_nominal):
     """Rays of an aperture launch (:func:`rfcheck.physics.aperture_pattern.aperture_rays`):
-    (starts, directions, shares, orientations, (sampling text, orientation text)).
+    (starts, directions, shares, orientations, (sampling text, orientation text), names of
+    the orientations for legends).
 
     The E direction: at ``e_angle_to_field`` from the projection of B (nominal currents, at
     the launcher) on the aperture plane, both senses of the angle unless it is 0 or 90° (the
@@ -205,6 +206,7 @@ def aperture_launch(launch, f: float, origin: np.ndarray, direction: np.ndarray,
         alpha = launch.e_angle_to_field
         signs = (1.0,) if min(alpha, abs(alpha - math.pi / 2)) < 1e-9 else (1.0, -1.0)
         e_dirs = [math.cos(alpha) * e1 + sg * math.sin(alpha) * e2 for sg in signs]
+        names = [""] if len(signs) == 1 else ["E at +angle", "E at −angle"]
         how = (f"aperture E at {math.degrees(alpha):.3g}° to the projection of B on it"
                + (" (both senses of the angle traced, each rule takes the worse)"
                   if len(signs) > 1 else ""))
@@ -217,6 +219,7 @@ def aperture_launch(launch, f: float, origin: np.ndarray, direction: np.ndarray,
             e1 = np.array([0.0, 1.0, 0.0]) - direction[1] * direction
         e1 /= np.linalg.norm(e1)
         e_dirs = [e1, np.cross(direction, e1)]
+        names = ["E radial", "E across"]
         why = ("not fixed (a circular polarisation turns E)" if launch.polarisation
                in ("circular-right", "circular-left") else
                "not declared" if launch.e_angle_to_field is None else
@@ -237,7 +240,7 @@ def aperture_launch(launch, f: float, origin: np.ndarray, direction: np.ndarray,
     text = (f"{ap.describe()} (uniform phase: a horn's flare phase error ignored) sampled by "
             f"{len(parts[0][2])} rays from its centre over its main lobe (to the first nulls "
             f"of its E- and H-planes: {reach})", how)
-    return starts, dirs, shares, len(parts), text
+    return starts, dirs, shares, len(parts), text, names
 
 
 def ray_grid(ctx) -> GridField:
@@ -330,13 +333,13 @@ def compute_ray_study(ctx, feed: Feed) -> RayStudy:
              f"{origin[2] * 1e3:.4g}) mm, {math.degrees(launch.tilt):.3g}° from "
              f"{'+' if launch.direction > 0 else '-'}z")
     orientations = 1
-    sampling = ("", "")
+    sampling, names = ("", ""), [""]
     if launch.beam:
         starts, dirs, weights = beam_rays(f, origin, direction, launch.beam.waist,
                                           waist_distance=launch.beam.waist_distance,
                                           rings=BEAM_RINGS, per_ring=BEAM_PER_RING)
     elif launch.aperture is not None:
-        starts, dirs, weights, orientations, sampling = aperture_launch(
+        starts, dirs, weights, orientations, sampling, names = aperture_launch(
             launch, f, origin, direction, scaled_field(grid, 1.0))
     else:
         starts, dirs, weights = origin[None, :], direction[None, :], np.ones(1)
@@ -382,9 +385,6 @@ def compute_ray_study(ctx, feed: Feed) -> RayStudy:
                       cyclotron_field=b_res, cyclotron_band=LAYER_BAND, rtol=RAY_RTOL,
                       max_evaluations=RAY_BUDGET,
                       groups=np.tile(np.repeat(np.arange(len(corners)), k), orientations))
-    names = ([""] if orientations == 1 else
-             ["E radial", "E across"] if "radial direction" in sampling[1] else
-             ["E at +angle", "E at −angle"])
     for o in range(orientations):
         w_o = weights[o * k:(o + 1) * k]
         for i, (n_peak, scale) in enumerate(corners):

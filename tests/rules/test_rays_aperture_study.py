@@ -111,7 +111,7 @@ def test_a_declared_e_angle_orients_the_aperture_from_the_projection_of_b(angle,
     d = launch.wave_direction
     b_perp = np.array([0.0, 0.0, 1.0]) - d[2] * d
     b_perp /= np.linalg.norm(b_perp)
-    starts, dirs, shares, orientations, (_, how) = aperture_launch(
+    starts, dirs, shares, orientations, (_, how), _names = aperture_launch(
         launch, 2.45e9, launch.origin, d, _uniform_b)
     assert orientations == count
     assert f"aperture E at {np.degrees(angle):.3g}°" in how
@@ -129,8 +129,8 @@ def test_an_e_angle_without_a_projection_of_b_takes_both_orientations():
 
     # k along B: the projection of B on the aperture vanishes, the angle fixes no direction
     launch = _launch(e_angle_to_field=0.2, tilt=0.0, angle_to_field=0.0)
-    *_, orientations, (_, how) = aperture_launch(launch, 2.45e9, launch.origin,
-                                                 launch.wave_direction, _uniform_b)
+    *_, orientations, (_, how), _ = aperture_launch(launch, 2.45e9, launch.origin,
+                                                    launch.wave_direction, _uniform_b)
     assert orientations == 2
     assert "fixes no direction" in how and "each rule takes the worse" in how
 
