@@ -75,6 +75,8 @@ def field_map_figure(run) -> dict | None:
         if not b.min() < b_res < b.max():
             continue
         c = _COLOURS[i % len(_COLOURS)]
+        # a white halo under the coloured line keeps it visible over the map in greyscale
+        ax.contour(zm, r, b, levels=[b_res], colors=["white"], linewidths=3.4)
         drawn.tag(ax.contour(zm, r, b, levels=[b_res], colors=[c], linewidths=1.6), "resonance")
         handles.append(plt.Line2D([], [], color=c, lw=1.6,
                                   label=f"|B| = {b_res:.4g} T, feed {_short(feed.id)} "

@@ -59,7 +59,7 @@ def window_figure(run) -> dict | None:
         with np.errstate(invalid="ignore"):
             if g.shape[0] > 1 and np.isfinite(g).any():
                 drawn.tag(ax.fill_between(fg, np.nanmin(g, axis=0), np.nanmax(g, axis=0),
-                                          color="#56b4e9", alpha=0.25, lw=0,
+                                          color="#56b4e9", alpha=0.5, lw=0,
                                           label="worst combinations found"), "worst-band")
         if np.isfinite(g[a.nominal]).any():
             drawn.tag(ax.plot(fg, g[a.nominal], color="#0072b2", lw=1.5,

@@ -148,7 +148,7 @@ def axis_field_figure(run) -> dict | None:
     mid = b.shape[0] // 2
     if b.shape[0] > 1:
         drawn.tag(ax.fill_between(zm, b.min(axis=0) * 1e3, b.max(axis=0) * 1e3, color="#56b4e9",
-                                  alpha=0.25, lw=0,
+                                  alpha=0.5, lw=0,
                                   label=f"current ±{model.magnet.current_tolerance:.1%}"),
                   "current-band")
     drawn.tag(ax.plot(zm, b[mid] * 1e3, color="#0072b2", lw=1.6, label="|B| on axis, nominal")[0],
